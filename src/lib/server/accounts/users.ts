@@ -1,0 +1,20 @@
+import { eq } from 'drizzle-orm';
+import { db } from '../db';
+import { users } from '../db/schema';
+import { isRole } from '$lib/roles';
+
+/** The user as stored now, or null when missing or disabled (a disabled account acts as signed out). */
+export async function findActiveUser(id: number): Promise<AppUser | null> {
+	const [row] = await db.select().from(users).where(eq(users.id, id)).limit(1);
+	if (!row || row.disabledAt || !isRole(row.role)) return null;
+	return { id: row.id, email: row.email, name: row.name, role: row.role, unitPreferences: row.unitPreferences ?? null };
+}
+
+export async function findUserByEmail(email: string) {
+	const [row] = await db.select().from(users).where(eq(users.email, normaliseEmail(email))).limit(1);
+	return row ?? null;
+}
+
+export function normaliseEmail(email: string) {
+	return email.trim().toLowerCase();
+}

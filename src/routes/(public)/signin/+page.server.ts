@@ -1,0 +1,49 @@
+import { fail, isRedirect, redirect } from '@sveltejs/kit';
+import { superValidate, message, setError } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
+import { signInSchema } from '$lib/schemas/accounts';
+import { signIn } from '$lib/server/auth';
+import { optionalUser } from '$lib/server/guards';
+import * as rateLimit from '$lib/server/accounts/rate-limit';
+import * as accounts from '$lib/server/accounts/sign-in';
+import type { Actions, PageServerLoad } from './$types';
+
+/** Only same-site paths are followed after sign-in (no open redirect). */
+function safeNext(value: string | null) {
+	return value && value.startsWith('/') && !value.startsWith('//') ? value : '/';
+}
+
+export const load: PageServerLoad = async (event) => {
+	if (await optionalUser(event)) redirect(303, safeNext(event.url.searchParams.get('next')));
+	return { form: await superValidate(zod4(signInSchema)) };
+};
+
+export const actions: Actions = {
+	signIn: async (event) => {
+		const form = await superValidate(event.request, zod4(signInSchema));
+		if (!form.valid) return fail(400, { form });
+		const address = event.getClientAddress();
+		const waitMinutes = await rateLimit.signInBlockedFor(form.data.email, address);
+		if (waitMinutes > 0)
+			return message(form, `Too many failed sign-ins. Wait ${waitMinutes} minutes and try again, or ask an admin to reset your password.`, { status: 429 });
+
+		const next = safeNext(event.url.searchParams.get('next'));
+		const body = new FormData();
+		body.set('providerId', 'credentials');
+		body.set('email', form.data.email);
+		body.set('password', form.data.password);
+		body.set('redirectTo', next);
+		try {
+			await signIn({ ...event, request: new Request(event.request.url, { method: 'POST', body }) });
+		} catch (thrown) {
+			if (isRedirect(thrown) && !thrown.location.includes('error=')) {
+				await rateLimit.clearAccountFailures(form.data.email);
+				redirect(303, next);
+			}
+			if (!isRedirect(thrown)) throw thrown;
+		}
+		await accounts.recordFailedSignIn(form.data.email, address);
+		form.data.password = '';
+		return setError(form, 'password', 'That e-mail and password do not match an active account.');
+	}
+};

@@ -1,0 +1,4 @@
+import { optionalUser } from '$lib/server/guards';
+import type { LayoutServerLoad } from './$types';
+
+export const load: LayoutServerLoad = async (event) => ({ user: await optionalUser(event) });
