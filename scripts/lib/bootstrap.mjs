@@ -39,6 +39,8 @@ export async function bootstrap({ mode, appPort }) {
 		PORT: String(appPort),
 		HOST: process.env.HOST ?? '127.0.0.1',
 		PUBLIC_BASE_URL: process.env.PUBLIC_BASE_URL ?? `http://127.0.0.1:${appPort}`,
+		// adapter-node compares a form's Origin with this (CSRF check); without it, it assumes https.
+		ORIGIN: process.env.ORIGIN ?? process.env.PUBLIC_BASE_URL ?? `http://127.0.0.1:${appPort}`,
 		SHOTWRIGHT_MODE: mode
 	};
 	step('Applying migrations…');

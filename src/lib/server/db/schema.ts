@@ -211,8 +211,8 @@ export const shots = mysqlTable(
 		muzzleSpeedMps: double(),
 		downrangeSpeedMps: double(),
 		/** Impact offset on the target face from the aim point: x to the right, y up (m). */
-		impactXM: double(),
-		impactYM: double(),
+		impactXM: double('impact_x_m'),
+		impactYM: double('impact_y_m'),
 		miss: boolean().notNull().default(false),
 		note: text(),
 		/** Per-shot conditions when the chronograph file carries them; else the session's. */
@@ -296,8 +296,8 @@ export const shotPredictions = mysqlTable('shot_predictions', {
 	predictedMuzzleMps: double(),
 	predictedTargetMps: double(),
 	predictedDownrangeMps: double(),
-	predictedImpactXM: double(),
-	predictedImpactYM: double(),
+	predictedImpactXM: double('predicted_impact_x_m'),
+	predictedImpactYM: double('predicted_impact_y_m'),
 	muzzleResidualMps: double(),
 	downrangeResidualMps: double(),
 	impactXResidualM: double(),

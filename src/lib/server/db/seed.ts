@@ -19,7 +19,15 @@ const DEMO_BCRYPT_COST = 10;
 
 type RigSpec = typeof rigs.$inferInsert & {
 	/** The "true" rig the shots come from, unknown to the app until it calibrates. */
-	truth: { efficiency: number; slopePerBar: number; wearPerWeek: number; elevationBiasDeg: number; impactSdM: number };
+	truth: {
+		efficiency: number;
+		slopePerBar: number;
+		wearPerWeek: number;
+		elevationBiasDeg: number;
+		impactSdM: number;
+		/** Shot-to-shot variation of the actual fill pressure, Pa. */
+		fillSdPa: number;
+	};
 };
 
 const RIGS: RigSpec[] = [
@@ -33,7 +41,7 @@ const RIGS: RigSpec[] = [
 		valveType: 'Pilot-operated diaphragm valve',
 		nominalEfficiency: 0.6,
 		notes: 'Ice-ball barrel with PTFE sleeve. Reservoir proof-tested hydrostatically to 1.5× rating.',
-		truth: { efficiency: 0.66, slopePerBar: -0.012, wearPerWeek: 0, elevationBiasDeg: 0.12, impactSdM: 0.006 }
+		truth: { efficiency: 0.66, slopePerBar: -0.012, wearPerWeek: 0, elevationBiasDeg: 0.12, impactSdM: 0.006, fillSdPa: 300 }
 	},
 	{
 		name: 'H2 · 45 mm hail launcher',
@@ -45,7 +53,7 @@ const RIGS: RigSpec[] = [
 		valveType: 'Quick-exhaust piston valve',
 		nominalEfficiency: 0.6,
 		notes: 'Second chronograph gate fitted 0.5 m in front of the specimen frame.',
-		truth: { efficiency: 0.57, slopePerBar: -0.015, wearPerWeek: -0.006, elevationBiasDeg: -0.2, impactSdM: 0.009 }
+		truth: { efficiency: 0.57, slopePerBar: -0.015, wearPerWeek: -0.002, elevationBiasDeg: -0.2, impactSdM: 0.009, fillSdPa: 500 }
 	},
 	{
 		name: 'P3 · 60 mm product-impact cannon',
@@ -57,7 +65,7 @@ const RIGS: RigSpec[] = [
 		valveType: 'Pneumatically actuated ball valve',
 		nominalEfficiency: 0.55,
 		notes: 'Used for packaging drop-replacement tests with foam-core impactors.',
-		truth: { efficiency: 0.51, slopePerBar: -0.008, wearPerWeek: 0, elevationBiasDeg: 0.05, impactSdM: 0.014 }
+		truth: { efficiency: 0.51, slopePerBar: -0.008, wearPerWeek: 0, elevationBiasDeg: 0.05, impactSdM: 0.014, fillSdPa: 1000 }
 	}
 ];
 
@@ -106,9 +114,10 @@ const SESSIONS: SessionSpec[] = [
 
 const LAUNCH_HEIGHT_M = 1.2;
 const AIM_HEIGHT_M = 1.2;
-/** Measurement noise of the demo's instruments (invented). */
-const GAUGE_SD_PA = 0.02 * BAR;
-const SHOT_SPEED_SD_REL = 0.006;
+/** Measurement noise of the demo's instruments and the rigs' own scatter (invented). */
+const SHOT_SPEED_SD_REL = 0.004;
+/** How many weeks before "now" the campaign starts: wear is counted from there. */
+const CAMPAIGN_WEEKS = 6;
 const CHRONO_SD_MPS = 0.1;
 const MISS_RATE = 0.02;
 
@@ -149,19 +158,28 @@ function round(value: number, digits: number) {
 function sessionShots(spec: SessionSpec, rig: RigSpec, projectile: ProjectileSpec, random: Random, startedAt: Date) {
 	const c = spec.conditions;
 	const rho = airDensity({ temperatureC: c.temperatureC, pressurePa: c.pressurePa, relativeHumidity: c.relativeHumidity });
-	const weeksOld = spec.daysAgo / 7;
-	const trueEfficiencyAt = (gaugePa: number) =>
-		rig.truth.efficiency + rig.truth.slopePerBar * (gaugePa / BAR - 3) + rig.truth.wearPerWeek * (5 - weeksOld);
+	const wear = rig.truth.wearPerWeek * (CAMPAIGN_WEEKS - spec.daysAgo / 7);
+	const crewEfficiencyAt = (gaugePa: number) => rig.truth.efficiency + rig.truth.slopePerBar * (gaugePa / BAR - 3);
+	const trueEfficiencyAt = (gaugePa: number) => crewEfficiencyAt(gaugePa) + wear;
 	const k = (rho * projectile.trueDragCoefficient * Math.PI * projectile.diameterM ** 2) / (8 * projectile.massKg);
 
-	// The crew's set point: from the nominal model (what an uncalibrated setup sheet would say).
-	let setPointPa = 0;
-	if ('targetSpeedMps' in spec.aim) {
-		const muzzleGuess = spec.aim.targetSpeedMps * Math.exp(k * spec.distanceM);
-		const solved = fillPressureForMuzzleSpeed(launcher(rig, projectile, c.pressurePa, rig.nominalEfficiency), muzzleGuess);
-		setPointPa = solved.ok ? solved.fillGaugePa : rig.ratedPressurePa / 2;
-	}
-	const nominalSpeed = 'targetSpeedMps' in spec.aim ? spec.aim.targetSpeedMps * Math.exp(k * spec.distanceM) : 40;
+	// The crew's set point: dialled in on the range at the start of the campaign (they do not
+	// know about later seal wear). Two fixed-point passes handle the pressure-dependent efficiency.
+	const setPointFor = (muzzleMps: number) => {
+		let pressurePa = 2 * BAR;
+		for (let pass = 0; pass < 3; pass++) {
+			const solved = fillPressureForMuzzleSpeed(launcher(rig, projectile, c.pressurePa, crewEfficiencyAt(pressurePa)), muzzleMps);
+			if (solved.ok) pressurePa = solved.fillGaugePa;
+		}
+		return Math.round(pressurePa / 100) * 100;
+	};
+	const speedAt = (gaugePa: number) => {
+		const r = muzzleSpeed({ fillGaugePa: gaugePa, ...launcher(rig, projectile, c.pressurePa, crewEfficiencyAt(gaugePa)) });
+		return r.ok ? r.speedMps : 0;
+	};
+	const setPointPa = 'targetSpeedMps' in spec.aim ? setPointFor(spec.aim.targetSpeedMps * Math.exp(k * spec.distanceM)) : 0;
+	const nominalSpeed =
+		'targetSpeedMps' in spec.aim ? speedAt(setPointPa) : speedAt(((spec.aim.sweepBar[0] + spec.aim.sweepBar[1]) / 2) * BAR);
 	const flight = {
 		launchHeightM: LAUNCH_HEIGHT_M,
 		targetDistanceM: spec.distanceM,
@@ -179,7 +197,7 @@ function sessionShots(spec: SessionSpec, rig: RigSpec, projectile: ProjectileSpe
 			'sweepBar' in spec.aim
 				? (spec.aim.sweepBar[0] + ((spec.aim.sweepBar[1] - spec.aim.sweepBar[0]) * (i % 8)) / 7) * BAR
 				: setPointPa;
-		const actualPa = fillGaugePa + random.normal(0, GAUGE_SD_PA);
+		const actualPa = fillGaugePa + random.normal(0, rig.truth.fillSdPa);
 		const result = muzzleSpeed({ fillGaugePa: actualPa, ...launcher(rig, projectile, c.pressurePa, trueEfficiencyAt(actualPa)) });
 		if (!result.ok) continue;
 		const v0 = result.speedMps * (1 + random.normal(0, SHOT_SPEED_SD_REL));

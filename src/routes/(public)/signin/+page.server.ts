@@ -8,6 +8,11 @@ import * as rateLimit from '$lib/server/accounts/rate-limit';
 import * as accounts from '$lib/server/accounts/sign-in';
 import type { Actions, PageServerLoad } from './$types';
 
+/** Auth.js throws (rather than redirects) when authorize() refuses the credentials. */
+function isCredentialsFailure(thrown: unknown) {
+	return (thrown as { type?: string } | null)?.type === 'CredentialsSignin';
+}
+
 /** Only same-site paths are followed after sign-in (no open redirect). */
 function safeNext(value: string | null) {
 	return value && value.startsWith('/') && !value.startsWith('//') ? value : '/';
@@ -40,7 +45,7 @@ export const actions: Actions = {
 				await rateLimit.clearAccountFailures(form.data.email);
 				redirect(303, next);
 			}
-			if (!isRedirect(thrown)) throw thrown;
+			if (!isRedirect(thrown) && !isCredentialsFailure(thrown)) throw thrown;
 		}
 		await accounts.recordFailedSignIn(form.data.email, address);
 		form.data.password = '';
