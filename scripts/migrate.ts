@@ -10,6 +10,10 @@ try {
 	await migrateDatabase(url);
 	console.log('Migrations applied.');
 } catch (err) {
-	console.error(`✗ Migration failed: ${(err as Error).message}`);
+	// Drizzle wraps the server's answer; the cause says what is wrong ("Table … already exists").
+	const cause = (err as { cause?: { message?: string } }).cause?.message;
+	const query = (err as Error).message.split('\n')[0];
+	console.error(`✗ Migration failed: ${cause ?? query}${cause ? `\n  while running: ${query.slice(0, 120)}` : ''}`);
+	console.error('  Fix: if this database was made by an older, unreleased schema, drop it (it is rebuilt and reseeded).');
 	process.exit(1);
 }

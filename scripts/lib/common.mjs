@@ -54,9 +54,13 @@ export const isRoot = () => typeof process.getuid === 'function' && process.getu
 export function ensureDependencies() {
 	const marker = path.join(ROOT, 'node_modules', '.package-lock.json');
 	const lock = path.join(ROOT, 'package-lock.json');
-	if (existsSync(marker) && statSync(marker).mtimeMs >= statSync(lock).mtimeMs) return;
-	step('Installing dependencies (npm ci)…');
-	mustRun('npm', ['ci', '--no-audit', '--no-fund'], 'npm ci');
+	if (!existsSync(marker) || statSync(marker).mtimeMs < statSync(lock).mtimeMs) {
+		step('Installing dependencies (npm ci)…');
+		mustRun('npm', ['ci', '--no-audit', '--no-fund'], 'npm ci');
+	}
+	// Scripts run through tsx resolve $lib with the paths SvelteKit writes into .svelte-kit/.
+	if (!existsSync(path.join(ROOT, '.svelte-kit', 'tsconfig.json')))
+		mustRun(path.join(ROOT, 'node_modules', '.bin', 'svelte-kit'), ['sync'], 'svelte-kit sync');
 }
 
 export function ensureDataDir() {

@@ -10,6 +10,7 @@ import { fillPressureForMuzzleSpeed } from '../../physics/internal';
 import { DEMO_PASSWORD, DEMO_USERS } from '../../../../scripts/lib/demo-users.mjs';
 import type { Database } from './client';
 import { projectiles, rangeSessions, rigs, shots, testPlans, users } from './schema';
+import { approveCalibration, fitCalibration, recomputePredictions } from '../reconcile';
 
 const SEED = 20261202;
 const DAY_MS = 24 * 3600 * 1000;
@@ -41,7 +42,7 @@ const RIGS: RigSpec[] = [
 		valveType: 'Pilot-operated diaphragm valve',
 		nominalEfficiency: 0.6,
 		notes: 'Ice-ball barrel with PTFE sleeve. Reservoir proof-tested hydrostatically to 1.5× rating.',
-		truth: { efficiency: 0.66, slopePerBar: -0.012, wearPerWeek: 0, elevationBiasDeg: 0.12, impactSdM: 0.006, fillSdPa: 300 }
+		truth: { efficiency: 0.66, slopePerBar: -0.012, wearPerWeek: 0, elevationBiasDeg: 0.05, impactSdM: 0.006, fillSdPa: 300 }
 	},
 	{
 		name: 'H2 · 45 mm hail launcher',
@@ -53,7 +54,7 @@ const RIGS: RigSpec[] = [
 		valveType: 'Quick-exhaust piston valve',
 		nominalEfficiency: 0.6,
 		notes: 'Second chronograph gate fitted 0.5 m in front of the specimen frame.',
-		truth: { efficiency: 0.57, slopePerBar: -0.015, wearPerWeek: -0.002, elevationBiasDeg: -0.2, impactSdM: 0.009, fillSdPa: 500 }
+		truth: { efficiency: 0.57, slopePerBar: -0.015, wearPerWeek: -0.002, elevationBiasDeg: -0.1, impactSdM: 0.009, fillSdPa: 500 }
 	},
 	{
 		name: 'P3 · 60 mm product-impact cannon',
@@ -65,7 +66,7 @@ const RIGS: RigSpec[] = [
 		valveType: 'Pneumatically actuated ball valve',
 		nominalEfficiency: 0.55,
 		notes: 'Used for packaging drop-replacement tests with foam-core impactors.',
-		truth: { efficiency: 0.51, slopePerBar: -0.008, wearPerWeek: 0, elevationBiasDeg: 0.05, impactSdM: 0.014, fillSdPa: 1000 }
+		truth: { efficiency: 0.51, slopePerBar: -0.008, wearPerWeek: 0, elevationBiasDeg: 0.03, impactSdM: 0.014, fillSdPa: 1000 }
 	}
 ];
 
@@ -173,13 +174,14 @@ function sessionShots(spec: SessionSpec, rig: RigSpec, projectile: ProjectileSpe
 		}
 		return Math.round(pressurePa / 100) * 100;
 	};
-	const speedAt = (gaugePa: number) => {
-		const r = muzzleSpeed({ fillGaugePa: gaugePa, ...launcher(rig, projectile, c.pressurePa, crewEfficiencyAt(gaugePa)) });
+	const speedAt = (gaugePa: number, extraEfficiency = 0) => {
+		const r = muzzleSpeed({ fillGaugePa: gaugePa, ...launcher(rig, projectile, c.pressurePa, crewEfficiencyAt(gaugePa) + extraEfficiency) });
 		return r.ok ? r.speedMps : 0;
 	};
 	const setPointPa = 'targetSpeedMps' in spec.aim ? setPointFor(spec.aim.targetSpeedMps * Math.exp(k * spec.distanceM)) : 0;
+	// The crew sights the rig in with a few shots: the elevation suits today's speed (wear included).
 	const nominalSpeed =
-		'targetSpeedMps' in spec.aim ? speedAt(setPointPa) : speedAt(((spec.aim.sweepBar[0] + spec.aim.sweepBar[1]) / 2) * BAR);
+		'targetSpeedMps' in spec.aim ? speedAt(setPointPa, wear) : speedAt(((spec.aim.sweepBar[0] + spec.aim.sweepBar[1]) / 2) * BAR, wear);
 	const flight = {
 		launchHeightM: LAUNCH_HEIGHT_M,
 		targetDistanceM: spec.distanceM,
@@ -192,7 +194,9 @@ function sessionShots(spec: SessionSpec, rig: RigSpec, projectile: ProjectileSpe
 	const elevationDeg = aimElevation(nominalSpeed, flight);
 
 	const rows: (typeof shots.$inferInsert)[] = [];
+	let firedAtMs = startedAt.getTime();
 	for (let i = 0; i < spec.shots; i++) {
+		firedAtMs += (90 + random.integer(60)) * 1000;
 		const fillGaugePa =
 			'sweepBar' in spec.aim
 				? (spec.aim.sweepBar[0] + ((spec.aim.sweepBar[1] - spec.aim.sweepBar[0]) * (i % 8)) / 7) * BAR
@@ -211,7 +215,7 @@ function sessionShots(spec: SessionSpec, rig: RigSpec, projectile: ProjectileSpe
 			sessionId: 0,
 			sequence: i + 1,
 			clientUuid: seededUuid(random),
-			firedAt: new Date(startedAt.getTime() + i * (90 + random.integer(60)) * 1000),
+			firedAt: new Date(firedAtMs),
 			fillGaugePa: round(fillGaugePa, 0),
 			muzzleSpeedMps: round(v0 + random.normal(0, CHRONO_SD_MPS), 2),
 			downrangeSpeedMps: atChrono?.reached ? round(atChrono.speedMps + random.normal(0, CHRONO_SD_MPS), 2) : null,
@@ -240,7 +244,7 @@ export async function seedDemo(db: Database, now = new Date()): Promise<boolean>
 	const random = createRandom(SEED);
 	const passwordHash = await bcrypt.hash(DEMO_PASSWORD, DEMO_BCRYPT_COST);
 
-	await db.transaction(async (tx) => {
+	const ids = await db.transaction(async (tx) => {
 		const userIds: Record<string, number> = {};
 		for (const u of DEMO_USERS) {
 			const [row] = await tx.insert(users).values({ ...u, role: u.role as never, passwordHash }).$returningId();
@@ -255,6 +259,7 @@ export async function seedDemo(db: Database, now = new Date()): Promise<boolean>
 		for (const plan of PLANS)
 			planIds.push((await tx.insert(testPlans).values({ ...plan, ownerId: userIds.lead }).$returningId())[0].id);
 
+		const sessionIds: number[] = [];
 		for (const spec of SESSIONS) {
 			const startedAt = new Date(now.getTime() - spec.daysAgo * DAY_MS - 3 * 3600 * 1000);
 			const rig = RIGS[spec.rig];
@@ -283,7 +288,35 @@ export async function seedDemo(db: Database, now = new Date()): Promise<boolean>
 				})
 				.$returningId();
 			await tx.insert(shots).values(rows.map((r) => ({ ...r, sessionId: session.id, enteredBy: userIds.range_officer })));
+			sessionIds.push(session.id);
 		}
+		return { userIds, rigIds, projectileIds, sessionIds };
+	});
+
+	// Every shot compared with the model, as the app does when shots arrive.
+	await recomputePredictions(db, { sessionIds: ids.sessionIds });
+	// The lab's history: H1 with 25 mm ice was calibrated on its pressure sweep and approved by the
+	// lead; the analyst has a draft for H2 with the nylon proxy waiting for review.
+	const analyst = { id: ids.userIds.analyst, role: 'analyst' as const };
+	const lead = { id: ids.userIds.lead, role: 'lead' as const };
+	const h1 = await fitCalibration(db, {
+		rigId: ids.rigIds[0],
+		projectileId: ids.projectileIds[0],
+		sessionIds: [ids.sessionIds[0]],
+		parameters: ['efficiency', 'pressureSlope', 'dragCoefficient', 'elevationBias'],
+		exclusions: [],
+		userId: analyst.id,
+		notes: 'Pressure sweep 0.9–3.2 bar with both chronographs.'
+	});
+	await approveCalibration(db, h1.calibration.id, lead);
+	await fitCalibration(db, {
+		rigId: ids.rigIds[1],
+		projectileId: ids.projectileIds[2],
+		sessionIds: [ids.sessionIds[2]],
+		parameters: ['efficiency', 'pressureSlope', 'dragCoefficient'],
+		exclusions: [],
+		userId: analyst.id,
+		notes: 'Nylon proxy sweep; for review.'
 	});
 	return true;
 }

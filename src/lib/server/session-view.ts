@@ -1,0 +1,46 @@
+// What the session page, its printable report and the close-out e-mail show: the session with
+// its rig, projectile and plan, every live shot with its prediction, and the statistics.
+import { eq, and, isNull } from 'drizzle-orm';
+import { db } from './db';
+import { users } from './db/schema';
+import * as sessions from './sessions';
+import * as shots from './shots';
+import { sessionStatistics } from './reconcile';
+import { appLink, sendMail } from './mail';
+
+export async function sessionView(id: number) {
+	const [view, allShots, statistics] = await Promise.all([sessions.getOr404(id), shots.allForSession(id), sessionStatistics(db, id)]);
+	return { ...view, shots: allShots, statistics };
+}
+
+export type SessionView = Awaited<ReturnType<typeof sessionView>>;
+
+const fixed = (v: number | null | undefined, digits: number, unit: string) => (v === null || v === undefined ? '—' : `${v.toFixed(digits)} ${unit}`);
+
+/** The close-out summary for leads, in SI with the units written out (e-mail has no preferences). */
+export function closeOutText(view: SessionView, link: string) {
+	const s = view.statistics;
+	const lines = [
+		`Range session "${view.session.title}" was closed.`,
+		`Rig: ${view.rig.name}; projectile: ${view.projectile.name}; test plan: ${view.plan?.name ?? 'none'}.`,
+		'',
+		`Shots: ${s.counts.shots} (misses: ${s.counts.misses}).`,
+		`Muzzle speed: mean ${fixed(s.speed.muzzle.mean, 2, 'm/s')}, SD ${fixed(s.speed.muzzle.sd, 2, 'm/s')}, extreme spread ${fixed(s.speed.muzzle.extremeSpread, 2, 'm/s')}.`,
+		`Group: CEP ${fixed(s.group.cepExact === null ? null : s.group.cepExact * 1000, 1, 'mm')}, mean radius ${fixed(s.group.meanRadius === null ? null : s.group.meanRadius * 1000, 1, 'mm')}.`,
+		`Model bias (muzzle speed): ${fixed(s.bias.muzzleSpeed.mean, 2, 'm/s')}${s.bias.muzzleSpeedPercent ? ` (${s.bias.muzzleSpeedPercent.mean.toFixed(2)} %)` : ''}${s.predictionsFrom.uncalibrated ? ', against uncalibrated nominal values' : ''}.`,
+		s.drift.flagged ? 'Drift: residuals trend with sequence or time (flagged).' : 'Drift: none flagged.',
+		s.plan ? `Plan: ${s.plan.passedBoth} of ${s.plan.shotsRequired} required shots met speed and impact (${s.plan.requirementMet ? 'met' : 'NOT met'}).` : '',
+		'',
+		`Report: ${link}`
+	];
+	return lines.filter((l, i, all) => l !== '' || all[i - 1] !== '').join('\n');
+}
+
+/** E-mail every active lead the close-out report of a session. Returns how many were sent. */
+export async function notifyLeadsOfClose(id: number) {
+	const view = await sessionView(id);
+	const leads = await db.select({ email: users.email }).from(users).where(and(eq(users.role, 'lead'), isNull(users.disabledAt)));
+	const text = closeOutText(view, appLink(`/sessions/${id}/report`));
+	for (const lead of leads) await sendMail({ to: lead.email, subject: `Session closed: ${view.session.title}`, text });
+	return leads.length;
+}

@@ -1,0 +1,3 @@
+import { planRoutes } from '$lib/server/registries';
+
+export const load = planRoutes.listLoad;

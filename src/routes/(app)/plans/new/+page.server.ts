@@ -1,0 +1,4 @@
+import { planRoutes } from '$lib/server/registries';
+
+export const load = planRoutes.newLoad;
+export const actions = { createPlan: planRoutes.create };

@@ -1,0 +1,3 @@
+import { projectileRoutes } from '$lib/server/registries';
+
+export const load = projectileRoutes.listLoad;

@@ -1,0 +1,3 @@
+import { rigRoutes } from '$lib/server/registries';
+
+export const load = rigRoutes.listLoad;
