@@ -2,7 +2,8 @@ import { defineConfig, devices } from '@playwright/test';
 
 // Browser tests run against the built app (adapter-node) on the test database, in Debian's chromium.
 // npm test prepares the environment (DATABASE_URL, SMTP_URL, AUTH_SECRET, …) and builds first.
-const PORT = 4173;
+// E2E_PORT lets a developer run one spec beside a full `npm test` (which uses 4173).
+const PORT = Number(process.env.E2E_PORT ?? 4173);
 
 export default defineConfig({
 	testDir: 'tests/e2e',
@@ -30,7 +31,7 @@ export default defineConfig({
 	},
 	projects: [{ name: 'chromium', use: { ...devices['Desktop Chrome'], channel: undefined } }],
 	webServer: {
-		command: 'node build',
+		command: `node ${process.env.E2E_BUILD_DIR ?? 'build'}`,
 		url: `http://127.0.0.1:${PORT}/api/v1/health`,
 		reuseExistingServer: false,
 		timeout: 60_000,
