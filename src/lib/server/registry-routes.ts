@@ -5,6 +5,7 @@ import { message, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import type { z } from 'zod';
 import type { Role } from '$lib/roles';
+import { blankNumberFields } from '$lib/schemas/blank';
 import { requireRole, requireUser } from './guards';
 import { failWithRule, idParam } from './forms';
 import { parseListParams, type ListParams, type Page } from './listing';
@@ -43,7 +44,10 @@ export function registryRoutes<Row, S extends z.ZodObject>(options: {
 		},
 		newLoad: async (event: RequestEvent) => {
 			await requireRole(event, editRole);
-			return { form: await superValidate(options.defaults as never, adapter, { errors: false }) };
+			return {
+				form: await superValidate(options.defaults as never, adapter, { errors: false }),
+				blankFields: blankNumberFields(schema, options.defaults)
+			};
 		},
 		create: async (event: RequestEvent) => {
 			const user = await requireRole(event, editRole);

@@ -4,12 +4,14 @@ import { requireRole } from '$lib/server/guards';
 import { failWithRule } from '$lib/server/forms';
 import * as sessions from '$lib/server/sessions';
 import { NEW_SESSION_DEFAULTS, sessionAdapter, sessionForm, sessionPickers } from '$lib/server/session-forms';
+import { blankNumberFields } from '$lib/schemas/blank';
+import { rangeSessionInput } from '$lib/schemas/range';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	await requireRole(event, 'range_officer');
 	const [form, pickers] = await Promise.all([sessionForm({ ...NEW_SESSION_DEFAULTS, startedAt: new Date() }), sessionPickers()]);
-	return { form, ...pickers };
+	return { form, ...pickers, blankFields: blankNumberFields(rangeSessionInput, NEW_SESSION_DEFAULTS) };
 };
 
 export const actions: Actions = {
