@@ -1,4 +1,6 @@
-import { testPlans as table } from './db/schema';
+import { eq } from 'drizzle-orm';
+import { rangeSessions, testPlans as table } from './db/schema';
+import { recomputePredictions } from './reconcile';
 import { registry } from './registry';
 import type { TestPlanInput } from '$lib/schemas/range';
 
@@ -7,5 +9,10 @@ export type TestPlan = typeof table.$inferSelect;
 export const plans = registry<typeof table, TestPlan, TestPlanInput, 'name' | 'requiredSpeedMps' | 'targetDistanceM' | 'updatedAt'>(table, {
 	entityType: 'test_plan',
 	sortable: { name: table.name, requiredSpeedMps: table.requiredSpeedMps, targetDistanceM: table.targetDistanceM, updatedAt: table.updatedAt },
-	defaultSort: 'name'
+	defaultSort: 'name',
+	// Pass/fail of every shot judged against the plan.
+	afterUpdate: async (tx, id) => {
+		const judged = await tx.select({ id: rangeSessions.id }).from(rangeSessions).where(eq(rangeSessions.testPlanId, id));
+		await recomputePredictions(tx, { sessionIds: judged.map((s) => s.id) });
+	}
 });

@@ -18,6 +18,8 @@ export type RegistryOptions<S extends string> = {
 	entityType: string;
 	sortable: Record<S, AnyColumn>;
 	defaultSort: S;
+	/** Runs inside an update's transaction, e.g. to recompute the predictions that depend on the row. */
+	afterUpdate?: (tx: Transaction, id: number) => Promise<unknown>;
 };
 
 /** A duplicate name is the one constraint users can hit by hand: say so in words. */
@@ -104,6 +106,7 @@ export function registry<T extends RegistryTable, Row extends { id: number }, In
 					const before = await find(tx, id);
 					if (!before) error(404, { message: `No ${entityType} with id ${id}.` });
 					await tx.update(t).set(input as never).where(eq(t.id, id));
+					await options.afterUpdate?.(tx, id);
 					const after = (await find(tx, id))!;
 					await recordAudit(tx, { userId, action: 'update', entityType, entityId: id, before, after });
 					return after;

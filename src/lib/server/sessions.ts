@@ -6,6 +6,7 @@ import type { RangeSessionInput } from '$lib/schemas/range';
 import { db, type Database, type Transaction } from './db';
 import { projectiles, rangeSessions, rigs, shots, testPlans } from './db/schema';
 import { recordAudit } from './audit';
+import { recomputePredictions } from './reconcile';
 import { containsPattern, orderBy, pageOf, type ListParams } from './listing';
 
 export type RangeSession = typeof rangeSessions.$inferSelect;
@@ -135,6 +136,8 @@ export async function update(id: number, input: RangeSessionInput, user: AppUser
 			.update(rangeSessions)
 			.set({ ...input, testPlanId: input.testPlanId ?? null, downrangeChronoM: input.downrangeChronoM ?? null })
 			.where(eq(rangeSessions.id, id));
+		// Geometry, conditions and the plan feed every prediction and pass/fail of the session.
+		await recomputePredictions(tx, { sessionIds: [id] });
 		const [after] = await tx.select().from(rangeSessions).where(eq(rangeSessions.id, id));
 		await recordAudit(tx, { userId: user.id, action: before.status === 'closed' ? 'update_closed' : 'update', entityType: 'range_session', entityId: id, before, after });
 		return { before, after };

@@ -226,3 +226,36 @@ describe('groupStats — small and degenerate groups', () => {
 		expect(() => groupStats([{ x: 0, y: Number.NaN }])).toThrow(PhysicsInputError);
 	});
 });
+
+describe('groupStats — extreme spread through the convex hull', () => {
+	const allPairs = (points: ImpactPoint[]) => {
+		let largest = 0;
+		for (let i = 0; i < points.length; i++)
+			for (let j = i + 1; j < points.length; j++)
+				largest = Math.max(largest, Math.hypot(points[i].x - points[j].x, points[i].y - points[j].y));
+		return largest;
+	};
+	// Deterministic pseudo-random points (a linear congruential sequence; any spread of points will do).
+	let state = 12345;
+	const next = () => (state = (state * 1103515245 + 12345) % 2147483648) / 2147483648;
+
+	it('equals the all-pairs maximum on scattered, collinear, repeated and circular sets', () => {
+		const sets: ImpactPoint[][] = [
+			Array.from({ length: 200 }, () => ({ x: next() - 0.5, y: next() - 0.5 })),
+			Array.from({ length: 50 }, () => {
+				const s = next();
+				return { x: s, y: 2 * s - 1 };
+			}),
+			Array.from({ length: 40 }, () => ({ x: Math.floor(3 * next()), y: Math.floor(3 * next()) })),
+			Array.from({ length: 64 }, (_, i) => ({ x: Math.cos((i * Math.PI) / 32), y: Math.sin((i * Math.PI) / 32) }))
+		];
+		for (const points of sets) expect(groupStats(points).extremeSpread).toBe(allPairs(points));
+	});
+
+	it('handles 100 000 impacts (an imported session) in seconds, not the minutes all pairs take', () => {
+		const points = Array.from({ length: 100_000 }, () => ({ x: next(), y: next() }));
+		const started = performance.now();
+		groupStats(points);
+		expect(performance.now() - started).toBeLessThan(5000);
+	});
+});

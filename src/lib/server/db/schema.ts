@@ -18,11 +18,10 @@ import {
 	varchar
 } from 'drizzle-orm/mysql-core';
 
-export const ROLES = ['viewer', 'range_officer', 'analyst', 'lead', 'admin'] as const;
-export type Role = (typeof ROLES)[number];
+import { ROLE_ORDER as ROLES } from '../../roles';
+import { PROJECTILE_SHAPES, SPEED_REFERENCES } from '../../schemas/range';
 
-export const PROJECTILE_SHAPES = ['sphere', 'cylinder', 'finned', 'other'] as const;
-export const SPEED_REFERENCES = ['muzzle', 'target'] as const;
+export { ROLES };
 export const SESSION_STATUSES = ['open', 'closed'] as const;
 export const CALIBRATION_STATUSES = ['draft', 'approved', 'superseded'] as const;
 
@@ -286,6 +285,15 @@ export const calibrationExclusions = mysqlTable(
 	(t) => [uniqueIndex('calibration_exclusions_pk').on(t.calibrationId, t.shotId)]
 );
 
+/**
+ * What a shot's speed was judged on against its test plan (design/product.md, "Details the
+ * issues leave open"): the muzzle chronograph for a plan at the muzzle; for a plan at the target,
+ * the downrange chronograph when the shot has a reading, else the model's speed at the target
+ * plane flown from the measured muzzle speed.
+ */
+export const SPEED_BASES = ['muzzle_chronograph', 'downrange_chronograph', 'model_from_muzzle'] as const;
+export type SpeedBasis = (typeof SPEED_BASES)[number];
+
 /** The model's prediction for one shot under the calibration in force, and the residuals. */
 export const shotPredictions = mysqlTable('shot_predictions', {
 	shotId: bigint({ mode: 'number' })
@@ -304,6 +312,14 @@ export const shotPredictions = mysqlTable('shot_predictions', {
 	impactYResidualM: double(),
 	passSpeed: boolean(),
 	passImpact: boolean(),
+	/** What passSpeed was judged on; null when the speed was not judged (no plan or no speed). */
+	speedBasis: mysqlEnum(SPEED_BASES),
+	/** The speed compared with the plan's required speed, m/s. */
+	judgedSpeedMps: double(),
+	/** The fill pressure lies outside the calibration's fitted range: the prediction extrapolates. */
+	outsideCalibratedPressures: boolean().notNull().default(false),
+	/** Why the model could not predict this shot (e.g. it stays in the barrel); null when it could. */
+	predictionError: varchar({ length: 500 }),
 	computedAt: created()
 });
 
