@@ -41,6 +41,9 @@ export async function bootstrap({ mode, appPort }) {
 		PUBLIC_BASE_URL: process.env.PUBLIC_BASE_URL ?? `http://127.0.0.1:${appPort}`,
 		// adapter-node compares a form's Origin with this (CSRF check); without it, it assumes https.
 		ORIGIN: process.env.ORIGIN ?? process.env.PUBLIC_BASE_URL ?? `http://127.0.0.1:${appPort}`,
+		// adapter-node refuses request bodies above 512 kB by default; CSV uploads go up to 25 MB
+		// (the import answers larger ones itself, with its own message, up to this cap).
+		BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? '64M',
 		SHOTWRIGHT_MODE: mode
 	};
 	step('Applying migrations…');

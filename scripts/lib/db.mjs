@@ -256,6 +256,8 @@ async function ensurePrivateServer() {
 			'--collation-server=utf8mb4_unicode_ci',
 			'--default-time-zone=+00:00',
 			'--innodb-buffer-pool-size=256M',
+			// CSV imports keep the uploaded file (up to 25 MB) in one LONGBLOB, sent and read back whole.
+			'--max-allowed-packet=64M',
 			'--max-connections=400'
 		];
 		if (isRoot()) args.push('--user=root');

@@ -20,8 +20,9 @@
  * What is expected (statuses as designed in src/lib/server/guards.ts):
  *   - allowed: anything but 401/403, a redirect to /signin or a 5xx. A placeholder id answers
  *     404 for an allowed role: that still proves the guards let the request through.
- *   - anonymous, not allowed: a page redirects (303) to /signin?next=…; an action or an API call
- *     answers 401.
+ *   - anonymous, not allowed: a page redirects (303) to /signin?next=…, and so does a GET of a
+ *     download outside /api (e.g. /sessions/1/shots.csv); an action, an API call or any other
+ *     method answers 401.
  *   - signed in with too low a role: 403.
  * Form actions are posted with an EMPTY form. An action must refuse an empty form (400) or be
  * harmless with it; that is why routes with [id] use placeholders that match no record, so an
@@ -91,6 +92,34 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/(app)/sessions/[id]/log': { path: `/sessions/${MISSING_ID}/log`, page: 'range_officer' },
 	'/(app)/sessions/[id]/report': { path: `/sessions/${MISSING_ID}/report`, page: 'viewer' },
 
+	// Calibrations: everyone reads; analysts fit drafts, leads approve. Rig health is for leads.
+	// The setup sheet only reads, so every signed-in user may ask for one.
+	'/(app)/calibrations': { page: 'viewer' },
+	'/(app)/calibrations/[rigId]/[projectileId]': {
+		path: `/calibrations/${MISSING_ID}/${MISSING_ID}`,
+		page: 'viewer',
+		actions: { fitCalibration: 'analyst' }
+	},
+	'/(app)/calibrations/[rigId]/[projectileId]/[id]': {
+		path: `/calibrations/${MISSING_ID}/${MISSING_ID}/${MISSING_ID}`,
+		page: 'viewer',
+		actions: { approveCalibration: 'lead' }
+	},
+	'/(app)/rig-health': { page: 'lead' },
+	'/(app)/setup': { page: 'viewer' },
+
+	// CSV imports (analysts and up) and exports (every signed-in user).
+	'/(app)/imports': { page: 'analyst', actions: { deleteTemplate: 'analyst' } },
+	'/(app)/imports/new': { page: 'analyst', actions: { saveTemplate: 'analyst' } },
+	'/(app)/imports/[id]': { path: `/imports/${MISSING_ID}`, page: 'analyst' },
+	'/(app)/imports/[id]/original.csv': { path: `/imports/${MISSING_ID}/original.csv`, methods: { GET: 'analyst' } },
+	'/(app)/imports/template.csv': { methods: { GET: 'viewer' } },
+	'/(app)/imports/uploads': { methods: { POST: 'analyst' } },
+	'/(app)/imports/uploads/[uploadId]/preview': { path: '/imports/uploads/00000000-0000-4000-8000-000000000000/preview', methods: { POST: 'analyst' } },
+	'/(app)/imports/uploads/[uploadId]/commit': { path: '/imports/uploads/00000000-0000-4000-8000-000000000000/commit', methods: { POST: 'analyst' } },
+	'/(app)/sessions/[id]/shots.csv': { path: `/sessions/${MISSING_ID}/shots.csv`, methods: { GET: 'viewer' } },
+	'/(app)/rigs/[id]/shots.csv': { path: `/rigs/${MISSING_ID}/shots.csv`, methods: { GET: 'viewer' } },
+
 	// JSON API (as on the pages: reads for every signed-in user, writes from the same role)
 	'/api/v1/health': { methods: { GET: 'anyone' } },
 	'/api/v1/openapi.json': { methods: { GET: 'anyone' } },
@@ -107,5 +136,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/sessions/[id]/close': { path: `/api/v1/sessions/${MISSING_ID}/close`, methods: { POST: 'range_officer' } },
 	'/api/v1/sessions/[id]/shots': { path: `/api/v1/sessions/${MISSING_ID}/shots`, methods: { GET: 'viewer', POST: 'range_officer' } },
 	'/api/v1/shots/[id]': { path: `/api/v1/shots/${MISSING_ID}`, methods: { GET: 'viewer', PATCH: 'analyst', DELETE: 'analyst' } },
-	'/api/v1/predictions': { methods: { POST: 'viewer' } }
+	'/api/v1/predictions': { methods: { POST: 'viewer' } },
+	'/api/v1/imports': { methods: { POST: 'analyst' } },
+	'/api/v1/setup-sheet': { methods: { POST: 'viewer' } }
 };

@@ -3,6 +3,7 @@
 // MariaDB (guards.ts), so a disabled account or a changed role takes effect at once.
 // The session cookie keeps Auth.js's defaults: httpOnly, sameSite=lax, and secure (with the
 // __Secure- prefix) whenever the app is reached over https.
+import type { RequestEvent } from '@sveltejs/kit';
 import { SvelteKitAuth } from '@auth/sveltekit';
 import Credentials from '@auth/sveltekit/providers/credentials';
 import { building, dev } from '$app/environment';
@@ -49,3 +50,17 @@ export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(async () =>
 		}
 	}
 }));
+
+/**
+ * The event Auth.js's signIn/signOut actions read: our own form fields as the body, and the
+ * original request's headers. Auth.js takes the host (for its redirect and callback URLs) and the
+ * session cookie (to end it on sign-out) from those headers; the body's type is FormData's own.
+ */
+export function authActionEvent<E extends RequestEvent>(event: E, fields: Record<string, string>): E {
+	const body = new FormData();
+	for (const [name, value] of Object.entries(fields)) body.set(name, value);
+	const headers = new Headers(event.request.headers);
+	headers.delete('content-type');
+	headers.delete('content-length');
+	return { ...event, request: new Request(event.request.url, { method: 'POST', body, headers }) };
+}

@@ -23,7 +23,7 @@ export async function requireUser(event: Event): Promise<AppUser> {
 	const user = await optionalUser(event);
 	if (user) return user;
 	if (isApi(event) || event.request.method !== 'GET')
-		error(401, { message: 'Sign in first: this needs a signed-in user or an API token.' });
+		error(401, { message: 'Sign in first: this needs a signed-in user or an API token.', issues: [] });
 	redirect(303, `/signin?next=${encodeURIComponent(event.url.pathname + event.url.search)}`);
 }
 
@@ -31,6 +31,9 @@ export async function requireUser(event: Event): Promise<AppUser> {
 export async function requireRole(event: Event, atLeast: Role): Promise<AppUser> {
 	const user = await requireUser(event);
 	if (!hasRole(user.role, atLeast))
-		error(403, { message: `This needs the ${ROLE_LABELS[atLeast]} role or higher; you are ${ROLE_LABELS[user.role]}.` });
+		error(403, {
+			message: `This needs the ${ROLE_LABELS[atLeast]} role or higher; you are ${ROLE_LABELS[user.role]}.`,
+			issues: []
+		});
 	return user;
 }

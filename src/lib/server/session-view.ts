@@ -1,15 +1,23 @@
 // What the session page, its printable report and the close-out e-mail show: the session with
 // its rig, projectile and plan, every live shot with its prediction, and the statistics.
+import { error } from '@sveltejs/kit';
 import { eq, and, isNull } from 'drizzle-orm';
 import { db } from './db';
 import { users } from './db/schema';
 import * as sessions from './sessions';
 import * as shots from './shots';
-import { sessionStatistics } from './reconcile';
+import { ReconcileError, sessionStatistics } from './reconcile';
 import { appLink, sendMail } from './mail';
 
 export async function sessionView(id: number) {
-	const [view, allShots, statistics] = await Promise.all([sessions.getOr404(id), shots.allForSession(id), sessionStatistics(db, id)]);
+	const [view, allShots, statistics] = await Promise.all([
+		sessions.getOr404(id),
+		shots.allForSession(id),
+		// An unknown session is getOr404's 404; the statistics' own "not found" (a ReconcileError)
+		// must not win the race and turn it into a 500.
+		sessionStatistics(db, id).catch((e: unknown) => (e instanceof ReconcileError && e.status === 404 ? null : Promise.reject(e)))
+	]);
+	if (!statistics) error(404, { message: `No range session with id ${id}.` });
 	return { ...view, shots: allShots, statistics };
 }
 

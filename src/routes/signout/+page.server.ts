@@ -1,13 +1,11 @@
 import { redirect } from '@sveltejs/kit';
-import { signOut } from '$lib/server/auth';
+import { authActionEvent, signOut } from '$lib/server/auth';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = () => redirect(303, '/');
 
 export const actions: Actions = {
 	default: async (event) => {
-		const body = new FormData();
-		body.set('redirectTo', '/signin');
-		await signOut({ ...event, request: new Request(event.request.url, { method: 'POST', body }) });
+		await signOut(authActionEvent(event, { redirectTo: '/signin' }));
 	}
 };

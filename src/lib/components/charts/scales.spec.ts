@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { curveRange, daysBefore, paddedDomain, symmetricDomain } from './scales';
+import { curveRange, daysBefore, elapsedAxis, formatTick, paddedDomain, pastDomain, symmetricDomain } from './scales';
 
 describe('paddedDomain', () => {
 	it('pads the data span on both sides', () => {
@@ -48,13 +48,37 @@ describe('daysBefore', () => {
 });
 
 describe('curveRange', () => {
-	it('widens the data range but never leaves [0, rated]', () => {
-		expect(curveRange([2e5, 3e5], 10e5)).toEqual([1.5e5, 3.5e5]);
+	it('widens the data range by a quarter of its span but never leaves [0, rated]', () => {
+		expect(curveRange([2e5, 4e5], 10e5)).toEqual([1.5e5, 4.5e5]);
 		expect(curveRange([0.2e5, 9.9e5], 10e5)).toEqual([0, 10e5]);
 	});
 
-	it('gives a single fill pressure a span of 5 % of the rating on each side', () => {
-		expect(curveRange([4e5], 10e5)).toEqual([3.5e5, 4.5e5]);
+	it('gives one fill pressure a tenth of itself on each side', () => {
+		expect(curveRange([4e5], 10e5)).toEqual([3.6e5, 4.4e5]);
 		expect(curveRange([], 8e5)).toEqual([0, 8e5]);
+	});
+});
+
+describe('formatTick', () => {
+	it('drops binary noise from tick values', () => {
+		expect(formatTick(0.1 + 0.2)).toBe('0.3');
+		expect(formatTick(-2.5)).toBe('-2.5');
+		expect(formatTick(1e6)).toBe('1000000');
+	});
+});
+
+describe('elapsedAxis', () => {
+	it('counts hours from the first shot within two days, else days', () => {
+		expect(elapsedAxis(['2026-03-01T10:00:00Z', '2026-03-01T08:00:00Z', '2026-03-01T11:30:00Z'])).toEqual({ values: [2, 0, 3.5], unit: 'h' });
+		expect(elapsedAxis(['2026-03-01T00:00:00Z', '2026-03-04T12:00:00Z'])).toEqual({ values: [0, 3.5], unit: 'd' });
+		expect(elapsedAxis([])).toEqual({ values: [], unit: 'h' });
+	});
+});
+
+describe('pastDomain', () => {
+	it('ends today and spans at least the minimum, padded', () => {
+		expect(pastDomain([-3, -1], 7, 0)).toEqual([-7, 0]);
+		expect(pastDomain([-40, -2], 7, 0.1)).toEqual([-44, 4]);
+		expect(pastDomain([], 14, 0)).toEqual([-14, 0]);
 	});
 });

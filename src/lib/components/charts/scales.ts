@@ -47,21 +47,52 @@ export function symmetricDomain(
 
 const DAY_MS = 24 * 3600 * 1000;
 
+/**
+ * A time axis in days before today (see daysBefore) that ends today and spans at least
+ * `minSpanDays`, padded on both sides.
+ */
+export function pastDomain(days: readonly number[], minSpanDays = 7, padFraction = DEFAULT_PAD_FRACTION): [number, number] {
+	const lo = Math.min(-minSpanDays, ...finiteOnly(days));
+	const hi = Math.max(0, ...finiteOnly(days));
+	const pad = (hi - lo) * padFraction;
+	return [lo - pad, hi + pad];
+}
+
 /** Days from `now` back to `date` as a negative number (0 = now): a time axis that ends today. */
 export function daysBefore(date: Date | string, now: Date): number {
 	return (new Date(date).getTime() - now.getTime()) / DAY_MS;
 }
 
 /**
- * Fill pressures to draw a model curve over: the data's range widened on each side by 15 % of
- * its span or 5 % of the rated pressure, whichever is more, and cut to [0, rated]: the curve
- * shows a little beyond the data, and never a pressure the rig may not take.
+ * Fill pressures to draw a model curve over: the data's range widened on each side by a quarter
+ * of its span or a tenth of its highest pressure, whichever is more, and cut to [0, rated]: the
+ * curve shows a little beyond the data (also when every shot was filled alike), and never a
+ * pressure the rig may not take.
  */
 export function curveRange(pressuresPa: readonly number[], ratedPa: number): [number, number] {
 	const values = finiteOnly(pressuresPa);
 	if (values.length === 0) return [0, ratedPa];
 	const lo = Math.min(...values);
 	const hi = Math.max(...values);
-	const pad = Math.max((hi - lo) * 0.15, ratedPa * 0.05);
+	const pad = Math.max((hi - lo) * 0.25, hi * 0.1);
 	return [Math.max(0, lo - pad), Math.min(ratedPa, hi + pad)];
+}
+
+/** A tick value without binary noise (0.30000000000000004 → "0.3"). */
+export function formatTick(value: number): string {
+	return String(Number(value.toPrecision(10)));
+}
+
+/**
+ * Elapsed time of shots from the first, in hours when they span less than two days, else in
+ * days: the x axis of residuals against time.
+ */
+export function elapsedAxis(times: readonly (Date | string)[]): { values: number[]; unit: 'h' | 'd' } {
+	const ms = times.map((t) => new Date(t).getTime());
+	if (ms.length === 0) return { values: [], unit: 'h' };
+	const first = Math.min(...ms);
+	const span = Math.max(...ms) - first;
+	const unit = span < 2 * DAY_MS ? 'h' : 'd';
+	const per = unit === 'h' ? 3600 * 1000 : DAY_MS;
+	return { values: ms.map((t) => (t - first) / per), unit };
 }

@@ -1,11 +1,20 @@
 // API tokens: random, shown once, stored as SHA-256 (a token is high-entropy, so a fast hash is
-// enough; bcrypt is for low-entropy passwords).
+// enough; bcrypt is for low-entropy passwords). A token carries no role of its own: requests made
+// with it act with its user's role as stored at that moment (guards.ts).
 import { createHash, randomBytes } from 'node:crypto';
-import { and, eq, isNull } from 'drizzle-orm';
+import { and, desc, eq, isNull, lt, or } from 'drizzle-orm';
 import { db } from '../db';
 import { apiTokens } from '../db/schema';
+import { recordAudit } from '../audit';
+import { verifyCredentials } from './passwords';
+import { clearAccountFailures, signInBlockedFor } from './rate-limit';
+import { recordFailedSignIn } from './sign-in';
 
 export const TOKEN_PREFIX = 'swt_';
+/** Characters of a token kept in clear so its owner can tell tokens apart ("swt_" + 6). */
+const SHOWN_PREFIX_LENGTH = 10;
+/** Last-use times are refreshed at most this often, so busy scripts do not write on every call. */
+const LAST_USED_RESOLUTION_MS = 60 * 1000;
 
 export function hashToken(token: string) {
 	return createHash('sha256').update(token, 'utf8').digest('hex');
@@ -16,7 +25,7 @@ export function newTokenValue() {
 }
 
 /** The token's user and id when the bearer token is valid and not revoked; records last use. */
-export async function resolveBearerToken(token: string) {
+export async function resolveBearerToken(token: string, now = new Date()) {
 	if (!token.startsWith(TOKEN_PREFIX) || token.length > 200) return null;
 	const [row] = await db
 		.select({ id: apiTokens.id, userId: apiTokens.userId })
@@ -24,6 +33,84 @@ export async function resolveBearerToken(token: string) {
 		.where(and(eq(apiTokens.tokenHash, hashToken(token)), isNull(apiTokens.revokedAt)))
 		.limit(1);
 	if (!row) return null;
-	await db.update(apiTokens).set({ lastUsedAt: new Date() }).where(eq(apiTokens.id, row.id));
+	const stale = new Date(now.getTime() - LAST_USED_RESOLUTION_MS);
+	await db
+		.update(apiTokens)
+		.set({ lastUsedAt: now })
+		.where(and(eq(apiTokens.id, row.id), or(isNull(apiTokens.lastUsedAt), lt(apiTokens.lastUsedAt, stale))));
 	return row;
+}
+
+/** A new token for the user; the clear value is returned here and never again. */
+export async function createApiToken(userId: number, name: string, actorId = userId) {
+	const token = newTokenValue();
+	const prefix = token.slice(0, SHOWN_PREFIX_LENGTH);
+	const id = await db.transaction(async (tx) => {
+		const [row] = await tx.insert(apiTokens).values({ userId, name, tokenHash: hashToken(token), prefix }).$returningId();
+		await recordAudit(tx, { userId: actorId, action: 'api_token_created', entityType: 'api_token', entityId: row.id, after: { userId, name, prefix } });
+		return row.id;
+	});
+	return { id, name, prefix, token };
+}
+
+/** The user's tokens, newest first; revoked ones stay listed (greyed) so their history is visible. */
+export function listApiTokens(userId: number) {
+	return db
+		.select({
+			id: apiTokens.id,
+			name: apiTokens.name,
+			prefix: apiTokens.prefix,
+			createdAt: apiTokens.createdAt,
+			lastUsedAt: apiTokens.lastUsedAt,
+			revokedAt: apiTokens.revokedAt
+		})
+		.from(apiTokens)
+		.where(eq(apiTokens.userId, userId))
+		.orderBy(desc(apiTokens.createdAt), desc(apiTokens.id));
+}
+
+/** Revoke one of the owner's tokens. False when it is not theirs or already revoked. */
+export async function revokeApiToken(ownerId: number, tokenId: number, actorId = ownerId, now = new Date()) {
+	return db.transaction(async (tx) => {
+		const [row] = await tx
+			.select()
+			.from(apiTokens)
+			.where(and(eq(apiTokens.id, tokenId), eq(apiTokens.userId, ownerId), isNull(apiTokens.revokedAt)))
+			.for('update');
+		if (!row) return false;
+		await tx.update(apiTokens).set({ revokedAt: now }).where(eq(apiTokens.id, row.id));
+		await recordAudit(tx, {
+			userId: actorId,
+			action: 'api_token_revoked',
+			entityType: 'api_token',
+			entityId: row.id,
+			before: { userId: ownerId, name: row.name, prefix: row.prefix }
+		});
+		return true;
+	});
+}
+
+export type TokenForCredentials =
+	| { ok: true; id: number; name: string; token: string }
+	| { ok: false; status: 401 | 429; message: string };
+
+/**
+ * POST /api/v1/tokens: a script trades e-mail and password for a named token. Wrong passwords
+ * count towards the same MariaDB rate limit as the sign-in page.
+ */
+export async function issueTokenForCredentials(
+	input: { email: string; password: string; name: string },
+	address: string
+): Promise<TokenForCredentials> {
+	const waitMinutes = await signInBlockedFor(input.email, address);
+	if (waitMinutes > 0)
+		return { ok: false, status: 429, message: `Too many failed sign-ins. Wait ${waitMinutes} minutes and try again.` };
+	const userId = await verifyCredentials({ email: input.email, password: input.password });
+	if (userId === null) {
+		await recordFailedSignIn(input.email, address);
+		return { ok: false, status: 401, message: 'That e-mail and password do not match an active account.' };
+	}
+	await clearAccountFailures(input.email);
+	const created = await createApiToken(userId, input.name);
+	return { ok: true, id: created.id, name: created.name, token: created.token };
 }

@@ -1,4 +1,4 @@
-import { eq } from 'drizzle-orm';
+import { and, eq, isNotNull, isNull } from 'drizzle-orm';
 import { db } from '../db';
 import { users } from '../db/schema';
 import { isRole } from '$lib/roles';
@@ -18,3 +18,17 @@ export async function findUserByEmail(email: string) {
 export function normaliseEmail(email: string) {
 	return email.trim().toLowerCase();
 }
+
+export type AccountStatus = 'active' | 'invited' | 'disabled';
+
+/** Invited: created by an admin, no password chosen yet (cannot sign in until they do). */
+export function accountStatus(row: { disabledAt: Date | null; passwordHash: string | null }): AccountStatus {
+	if (row.disabledAt) return 'disabled';
+	return row.passwordHash ? 'active' : 'invited';
+}
+
+/**
+ * An admin who can act right now: enabled and with a password. The last one may not be demoted
+ * or disabled, or nobody could manage users any more.
+ */
+export const isActiveAdmin = and(eq(users.role, 'admin'), isNull(users.disabledAt), isNotNull(users.passwordHash));

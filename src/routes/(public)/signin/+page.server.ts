@@ -2,7 +2,7 @@ import { fail, isRedirect, redirect } from '@sveltejs/kit';
 import { superValidate, message, setError } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { signInSchema } from '$lib/schemas/accounts';
-import { signIn } from '$lib/server/auth';
+import { authActionEvent, signIn } from '$lib/server/auth';
 import { optionalUser } from '$lib/server/guards';
 import * as rateLimit from '$lib/server/accounts/rate-limit';
 import * as accounts from '$lib/server/accounts/sign-in';
@@ -33,13 +33,8 @@ export const actions: Actions = {
 			return message(form, `Too many failed sign-ins. Wait ${waitMinutes} minutes and try again, or ask an admin to reset your password.`, { status: 429 });
 
 		const next = safeNext(event.url.searchParams.get('next'));
-		const body = new FormData();
-		body.set('providerId', 'credentials');
-		body.set('email', form.data.email);
-		body.set('password', form.data.password);
-		body.set('redirectTo', next);
 		try {
-			await signIn({ ...event, request: new Request(event.request.url, { method: 'POST', body }) });
+			await signIn(authActionEvent(event, { providerId: 'credentials', email: form.data.email, password: form.data.password, redirectTo: next }));
 		} catch (thrown) {
 			if (isRedirect(thrown) && !thrown.location.includes('error=')) {
 				await rateLimit.clearAccountFailures(form.data.email);

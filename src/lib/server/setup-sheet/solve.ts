@@ -1,0 +1,196 @@
+// Solving a setup sheet (shared/design/physics.md §4): the fill pressure that gives the plan's
+// speed (at the muzzle or at the target plane) and the elevation that puts the shot on the aim
+// point, under a calibration (or the nominal values). Pure: no database, so it is unit-tested on
+// its own; setup-sheet/index.ts feeds it from the registry.
+//
+// The two unknowns are coupled when the speed is judged at the target: the speed at the plane
+// depends a little on the path (hence on the elevation), and the elevation on the muzzle speed.
+// Fixed-point iteration: solve the fill pressure at the current elevation (solveFillPressure,
+// Brent), then the low-arc elevation for the resulting muzzle speed (solveElevation), until the
+// elevation stops moving. The coupling is weak (a degree of elevation changes the path length by
+// a fraction of a per mille), so two or three rounds settle it; a speed at the muzzle needs one.
+// The calibrated elevation bias δθ is added to the set elevation in every flight (as predictShot
+// does), so the sheet gives the elevation to set on the rig's scale.
+import {
+	flightPath,
+	predictShot,
+	solveElevation,
+	solveFillPressure,
+	type FillPressureFailure,
+	type FlightPathPoint,
+	type LauncherCalibration,
+	type LauncherRig,
+	type Projectile,
+	type ShotPrediction
+} from '$lib/physics';
+
+/** Rounds of the fill/elevation iteration before giving up. */
+const MAX_ROUNDS = 8;
+/** The elevation has settled when a round moves it by less than this, degrees (≈ 2 µm at 100 m). */
+const ELEVATION_SETTLED_DEG = 1e-6;
+/** Points of the trajectory drawn on the sheet. */
+const TRAJECTORY_SAMPLES = 80;
+
+export interface SetupProblem {
+	calibration: LauncherCalibration;
+	rig: LauncherRig & { ratedPressurePa: number };
+	projectile: Projectile;
+	plan: { speedAt: 'muzzle' | 'target'; requiredSpeedMps: number; targetDistanceM: number };
+	range: {
+		launchHeightM: number;
+		/** Height of the aim point above the ground at the target plane, m. */
+		aimHeightM: number;
+		azimuthDeg: number;
+		airDensityKgM3: number;
+		/** Barometric pressure, Pa. */
+		ambientPa: number;
+		wind: { xMps: number; zMps: number };
+	};
+}
+
+export type SetupRefusalCode = FillPressureFailure | 'no-elevation' | 'not-settled' | 'not-predicted';
+
+export type SetupSolution =
+	| {
+			ok: true;
+			fillGaugePa: number;
+			/** Rated working pressure minus the fill, Pa. */
+			marginPa: number;
+			/** Elevation to set on the rig, degrees (the calibrated bias is not included). */
+			elevationDeg: number;
+			/** The prediction at the solved fill pressure and elevation (predictShot). */
+			prediction: ShotPrediction;
+			trajectory: FlightPathPoint[];
+			rounds: number;
+	  }
+	| {
+			ok: false;
+			code: SetupRefusalCode;
+			/** The solver's own words (SI units); the sheet rewords the common refusals in the user's units. */
+			reason: string;
+			/** The speed the plan judges (muzzle or target) at the rated pressure, when it can be predicted. */
+			speedAtRatedMps: number | null;
+	  };
+
+function shotFor(p: SetupProblem, elevationDeg: number) {
+	const { range, plan, projectile, calibration } = p;
+	return {
+		elevationDeg: elevationDeg + calibration.parameters.elevationBiasDeg,
+		azimuthDeg: range.azimuthDeg,
+		launchHeightM: range.launchHeightM,
+		targetDistanceM: plan.targetDistanceM,
+		diameterM: projectile.diameterM,
+		dragCoefficient: calibration.parameters.dragCoefficient,
+		airDensityKgM3: range.airDensityKgM3,
+		wind: range.wind
+	};
+}
+
+function predictAt(p: SetupProblem, fillGaugePa: number, elevationDeg: number) {
+	return predictShot(p.calibration, {
+		rig: p.rig,
+		projectile: p.projectile,
+		fillGaugePa,
+		session: {
+			targetDistanceM: p.plan.targetDistanceM,
+			elevationDeg,
+			azimuthDeg: p.range.azimuthDeg,
+			launchHeightM: p.range.launchHeightM,
+			aimHeightM: p.range.aimHeightM,
+			airDensityKgM3: p.range.airDensityKgM3,
+			ambientPa: p.range.ambientPa,
+			wind: p.range.wind
+		}
+	});
+}
+
+/** The judged speed at the rated pressure, to say how far short the rig falls. */
+function speedAtRated(p: SetupProblem, elevationDeg: number): number | null {
+	try {
+		const r = predictAt(p, p.rig.ratedPressurePa, elevationDeg);
+		if (!r.ok) return null;
+		if (p.plan.speedAt === 'muzzle') return r.muzzleSpeedMps;
+		return r.impact.reached ? r.impact.speedMps : null;
+	} catch {
+		return null;
+	}
+}
+
+/** Solve the fill pressure and elevation for the plan; refuse anything above the rated pressure. */
+export function solveSetup(p: SetupProblem): SetupSolution {
+	const c = p.calibration.parameters;
+	const efficiency =
+		c.pressureSlope === 0
+			? c.efficiency
+			: { eta0: c.efficiency, eta1: c.pressureSlope, pRefPa: c.pRefPa };
+	const launcher = {
+		ambientPa: p.range.ambientPa,
+		reservoirM3: p.rig.reservoirM3,
+		deadM3: p.rig.deadM3,
+		boreDiameterM: p.rig.boreDiameterM,
+		travelM: p.rig.travelM,
+		massKg: p.projectile.massKg,
+		lossN: c.lossN,
+		polytropicIndex: p.rig.polytropicIndex,
+		gasInertia: p.rig.gasInertia,
+		efficiency
+	};
+	let elevationDeg = 0;
+	let settledAt = 0;
+	let fillGaugePa = NaN;
+	for (let round = 1; round <= MAX_ROUNDS; round++) {
+		const fill = solveFillPressure({
+			...launcher,
+			requiredSpeedMps: p.plan.requiredSpeedMps,
+			ratedPressurePa: p.rig.ratedPressurePa,
+			...(p.plan.speedAt === 'muzzle' ? { at: 'muzzle' as const } : { at: 'target' as const, shot: shotFor(p, elevationDeg) })
+		});
+		if (!fill.ok) return { ok: false, code: fill.code, reason: fill.reason, speedAtRatedMps: speedAtRated(p, elevationDeg) };
+		fillGaugePa = fill.fillGaugePa;
+		const shot = shotFor(p, 0);
+		const aim = solveElevation({
+			speedMps: fill.muzzleSpeedMps,
+			azimuthDeg: shot.azimuthDeg,
+			launchHeightM: shot.launchHeightM,
+			targetDistanceM: shot.targetDistanceM,
+			massKg: p.projectile.massKg,
+			diameterM: shot.diameterM,
+			dragCoefficient: shot.dragCoefficient,
+			airDensityKgM3: shot.airDensityKgM3,
+			wind: shot.wind,
+			aimHeightM: p.range.aimHeightM
+		});
+		if (!aim.ok) return { ok: false, code: 'no-elevation', reason: aim.reason, speedAtRatedMps: null };
+		const next = aim.elevationDeg - c.elevationBiasDeg;
+		const moved = Math.abs(next - elevationDeg);
+		elevationDeg = next;
+		if (p.plan.speedAt === 'muzzle' || moved < ELEVATION_SETTLED_DEG) {
+			settledAt = round;
+			break;
+		}
+	}
+	if (settledAt === 0)
+		return {
+			ok: false,
+			code: 'not-settled',
+			reason: `The fill pressure and elevation did not settle in ${MAX_ROUNDS} rounds.`,
+			speedAtRatedMps: null
+		};
+
+	const prediction = predictAt(p, fillGaugePa, elevationDeg);
+	if (!prediction.ok) return { ok: false, code: 'not-predicted', reason: prediction.reason, speedAtRatedMps: null };
+	const shot = shotFor(p, elevationDeg);
+	const path = flightPath(
+		{ ...shot, speedMps: prediction.muzzleSpeedMps, massKg: p.projectile.massKg },
+		{ samples: TRAJECTORY_SAMPLES }
+	);
+	return {
+		ok: true,
+		fillGaugePa,
+		marginPa: p.rig.ratedPressurePa - fillGaugePa,
+		elevationDeg,
+		prediction,
+		trajectory: path.points,
+		rounds: settledAt
+	};
+}

@@ -1,0 +1,4 @@
+import { importApi } from '$lib/server/imports/api';
+import type { RequestHandler } from './$types';
+
+export const POST: RequestHandler = importApi.create;
