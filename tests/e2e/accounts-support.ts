@@ -101,6 +101,7 @@ export async function settled(page: Page) {
 
 export async function choosePassword(page: Page, link: string, password: string) {
 	await page.goto(link);
+	await settled(page);
 	await page.getByLabel('New password', { exact: true }).fill(password);
 	await page.getByLabel('New password again').fill(password);
 	await page.getByRole('button', { name: 'Save the password' }).click();

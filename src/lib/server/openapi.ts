@@ -660,7 +660,7 @@ export const OPERATIONS: Operation[] = [
 		tag: 'Imports',
 		summary: 'Import a chronograph CSV file',
 		description:
-			'Multipart upload. The rows go to one session (sessionId) or to sessions named in a column (templateSessionId: titles that match no live session create one, copying that session’s rig, projectile, plan, geometry and conditions). Without a mapping (or a template name) the suggested one is used: columns by their header names, units from the headers, else from the values. Every row is checked (numbers, physical ranges, duplicate sequence numbers, units that look wrong); mode all-or-nothing refuses the file if any row is invalid, valid-rows imports the valid ones and keeps the rejected ones with their reasons. One transaction: the record (raw bytes and SHA-256 kept), the shots and their predictions. The same file twice is refused unless force is true.',
+			'Multipart upload. The rows go to one session (sessionId) or to sessions named in a column (templateSessionId: titles that match no live session create one, copying that session’s rig, projectile, plan, geometry and conditions). Without a mapping (or a template name) the suggested one is used: columns by their header names, units from the headers, else from the values. Every row is checked (numbers, physical ranges, duplicate sequence numbers, units that look wrong); mode all-or-nothing refuses the file if any row is invalid, valid-rows imports the valid ones and keeps the rejected ones with their reasons. One transaction: the record (raw bytes and SHA-256 kept), the shots and their predictions. The same file twice is refused unless force is true. Send an Origin header naming this server: like every form post, a multipart upload without it is refused (403) as cross-site.',
 		access: 'analyst',
 		multipart: { schema: 'ImportUpload', example: IMPORT_UPLOAD_EXAMPLE },
 		responses: [
@@ -937,7 +937,11 @@ function curlFor(op: Operation, origin: string) {
 		lines.push(`  -H 'Content-Type: application/json'`);
 		lines.push(`  -d '${JSON.stringify(op.body.example)}'`);
 	}
-	if (op.multipart) for (const [name, value] of Object.entries(op.multipart.example)) lines.push(`  -F '${name}=${value}'`);
+	if (op.multipart) {
+		// SvelteKit's CSRF check refuses a form post whose Origin is not the server's own.
+		lines.push(`  -H 'Origin: ${origin}'`);
+		for (const [name, value] of Object.entries(op.multipart.example)) lines.push(`  -F '${name}=${value}'`);
+	}
 	return lines.join(' \\\n');
 }
 

@@ -20,7 +20,7 @@ import {
 	type ResolvedMapping
 } from '$lib/schemas/imports';
 import { displayUnit, type Prefs } from '$lib/format';
-import type { Quantity } from '$lib/physics/units';
+import { toSI, type Quantity, type UnitOf } from '$lib/physics/units';
 import { imports, rangeSessions, shots } from '../db/schema';
 import { recordAudit } from '../audit';
 import { recomputePredictions } from '../reconcile';
@@ -30,10 +30,9 @@ import { ImportRefused } from './errors';
 import { applyTemplate, headerUnit, resolveMapping, suggestMapping } from './mapping';
 import { decodeText, detectFormat, NEWLINE_LABELS, type DetectedFormat } from './parse';
 import { guessSpeedAndPressureUnits, unitCheck } from './plausibility';
-import { importsOfFile, templateByName, type ImportRecord, type StoredMapping } from './records';
+import { getImport, importsOfFile, templateByName, type ImportRecord, type StoredMapping } from './records';
 import { checkShots, readShots, type CheckResult, type CheckedShot, type ReadFile, type SessionTarget } from './validate';
 import { isEmptyCell, parseNumber } from './values';
-import { getImport } from './records';
 
 /** Shots per INSERT statement (≈ 300 kB of SQL; MariaDB takes up to max_allowed_packet). */
 export const SHOT_CHUNK = 2000;
@@ -171,14 +170,15 @@ export async function suggestionFor(db: Executor, format: DetectedFormat, reques
 	});
 }
 
-const PRESSURE_SCALE: Record<string, number> = { Pa: 1, kPa: 1e3, bar: 1e5, psi: 6894.757293168361 };
-
 /** The preferred pressure unit if it keeps the median fill between 2 % and 110 % of the rating, else the first that does. */
 function pressureWithinRating(values: number[], ratedPa: number, preferred: string): string | null {
 	if (values.length === 0) return null;
 	const sorted = [...values].sort((a, b) => a - b);
 	const median = sorted[sorted.length >> 1];
-	const fits = (unit: string) => median * PRESSURE_SCALE[unit] >= 0.02 * ratedPa && median * PRESSURE_SCALE[unit] <= 1.1 * ratedPa;
+	const fits = (unit: string) => {
+		const pa = toSI('pressure', unit as UnitOf['pressure'], median);
+		return pa >= 0.02 * ratedPa && pa <= 1.1 * ratedPa;
+	};
 	if (fits(preferred)) return preferred;
 	return ['bar', 'kPa', 'psi', 'Pa'].find(fits) ?? null;
 }

@@ -5,7 +5,7 @@
 // agree best with the model's prediction for the rig (plausibility.ts), other quantities by their
 // ranges, else the person's preferred unit. A person can change any of it on the mapping screen;
 // a script sends its own mapping (by header or by column index).
-import type { Quantity } from '$lib/physics/units';
+import { toSI, type Quantity } from '$lib/physics/units';
 import { displayUnit, type Prefs } from '$lib/format';
 import {
 	FIELD_BY_ID,
@@ -212,14 +212,11 @@ export function rangeUnit(field: ImportFieldId, values: number[], prefs: Prefs):
 	}
 	if (field === 'airTemperature') return median > 200 ? 'K' : fallback;
 	if (field === 'barometricPressure') {
-		const scales: [string, number][] = [
-			['Pa', 1],
-			['kPa', 1e3],
-			['bar', 1e5],
-			['psi', 6894.757293168361]
-		];
-		const fits = scales.find(([, scale]) => median * scale >= 50_000 && median * scale <= 110_000);
-		return fits ? fits[0] : fallback;
+		const fits = (['Pa', 'kPa', 'bar', 'psi'] as const).find((unit) => {
+			const pa = toSI('pressure', unit, median);
+			return pa >= 50_000 && pa <= 110_000;
+		});
+		return fits ?? fallback;
 	}
 	return fallback;
 }

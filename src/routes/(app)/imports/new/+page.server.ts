@@ -21,12 +21,19 @@ export const load: PageServerLoad = async (event) => {
 		superValidate(zod4(saveTemplateSchema), { id: 'template' })
 	]);
 	const choices = list.rows
-		.map((s) => ({ id: s.id, title: s.title, status: s.status, rig: s.rig, projectile: s.projectile, startedAt: s.startedAt, shotCount: s.shotCount }))
+		.map((s) => ({ id: s.id, title: s.title, status: s.status, rig: s.rig, projectile: s.projectile, startedAt: s.startedAt, shotCount: s.shotCount as number | null }))
 		.sort((a, b) => (a.status === b.status ? 0 : a.status === 'open' ? -1 : 1));
 	const param = (name: string) => {
 		const n = Number(event.url.searchParams.get(name));
 		return Number.isSafeInteger(n) && n > 0 ? n : null;
 	};
+	// The session asked for by the link must be offered even when it is older than the latest SESSION_CHOICES.
+	for (const id of [param('sessionId'), param('templateSessionId')]) {
+		if (id === null || choices.some((c) => c.id === id)) continue;
+		const found = await sessions.get(id);
+		if (found && !found.session.deletedAt)
+			choices.unshift({ id, title: found.session.title, status: found.session.status, rig: found.rig.name, projectile: found.projectile.name, startedAt: found.session.startedAt, shotCount: null });
+	}
 	return {
 		sessions: choices,
 		templates: templates.map((t) => ({ id: t.id, name: t.name, mapping: t.mapping, createdByName: t.createdByName })),
