@@ -16,6 +16,8 @@
 import { PhysicsInputError, requireNonNegative, requirePositive } from './errors';
 import { choleskySemidefinite } from './fit/linalg';
 import {
+	parameterValue,
+	withParameter,
 	predictShot,
 	type CalibrationParameters,
 	type LauncherCalibration,
@@ -72,36 +74,6 @@ const MAX_SAMPLES = 1_000_000;
 /** Relative step of the central difference ∂v_target/∂v_muzzle. */
 const SPEED_STEP_RELATIVE = 1e-4;
 
-function withParameter(p: CalibrationParameters, name: ParameterName, value: number): CalibrationParameters {
-	switch (name) {
-		case 'efficiency':
-			return { ...p, efficiency: value };
-		case 'pressureSlope':
-			return { ...p, pressureSlope: value };
-		case 'lossForce':
-			return { ...p, lossN: value };
-		case 'dragCoefficient':
-			return { ...p, dragCoefficient: value };
-		default:
-			return { ...p, elevationBiasDeg: value };
-	}
-}
-
-function valueOf(p: CalibrationParameters, name: ParameterName): number {
-	switch (name) {
-		case 'efficiency':
-			return p.efficiency;
-		case 'pressureSlope':
-			return p.pressureSlope;
-		case 'lossForce':
-			return p.lossN;
-		case 'dragCoefficient':
-			return p.dragCoefficient;
-		default:
-			return p.elevationBiasDeg;
-	}
-}
-
 function chance(hits: number, n: number): Chance {
 	const p = hits / n;
 	return { probability: p, standardError: Math.sqrt((p * (1 - p)) / n) };
@@ -147,7 +119,7 @@ export function chanceOfMeetingPlan(input: ChanceInput): ChanceResult {
 		if (!calibration.identifiable[j])
 			notes.push(`${name} was not determined by the calibration: its uncertainty is left out, so the chances are optimistic`);
 	});
-	const mean = drawn.map(({ name }) => valueOf(calibration.parameters, name));
+	const mean = drawn.map(({ name }) => parameterValue(calibration.parameters, name));
 	const factor = choleskySemidefinite(drawn.map(({ j }) => drawn.map(({ j: k }) => calibration.covariance[j][k])));
 
 	const atTarget = plan.speed?.at === 'target';

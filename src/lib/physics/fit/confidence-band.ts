@@ -10,7 +10,7 @@
 // differences, so the band follows the model exactly as predictShot computes it (η(p), F, the
 // polytropic work), without a second hand-derived formula that could drift from it.
 import { muzzleSpeed } from '../internal';
-import type { CalibrationParameters, LauncherCalibration, LauncherRig, ParameterName, Projectile } from './launcher';
+import { parameterValue, withParameter, type CalibrationParameters, type LauncherCalibration, type LauncherRig, type ParameterName, type Projectile } from './launcher';
 
 /**
  * Central-difference step per parameter as a fraction of its standard error. The band only needs
@@ -78,36 +78,6 @@ export function deltaMethod(
 	};
 }
 
-function withParameter(p: CalibrationParameters, name: ParameterName, value: number): CalibrationParameters {
-	switch (name) {
-		case 'efficiency':
-			return { ...p, efficiency: value };
-		case 'pressureSlope':
-			return { ...p, pressureSlope: value };
-		case 'lossForce':
-			return { ...p, lossN: value };
-		case 'dragCoefficient':
-			return { ...p, dragCoefficient: value };
-		default:
-			return { ...p, elevationBiasDeg: value };
-	}
-}
-
-function valueOf(p: CalibrationParameters, name: ParameterName): number {
-	switch (name) {
-		case 'efficiency':
-			return p.efficiency;
-		case 'pressureSlope':
-			return p.pressureSlope;
-		case 'lossForce':
-			return p.lossN;
-		case 'dragCoefficient':
-			return p.dragCoefficient;
-		default:
-			return p.elevationBiasDeg;
-	}
-}
-
 /** The launcher a curve is drawn for: one rig, one projectile, one ambient pressure. */
 export interface CurveLauncher {
 	rig: LauncherRig;
@@ -164,7 +134,7 @@ export function muzzleSpeedBand(
 	quantile: number
 ): MuzzleSpeedBand {
 	const names = calibration.fitted;
-	const theta = names.map((n) => valueOf(calibration.parameters, n));
+	const theta = names.map((n) => parameterValue(calibration.parameters, n));
 	const omitted = new Set<ParameterName>();
 	const points: BandPoint[] = [];
 	for (const fillGaugePa of pressuresPa) {

@@ -103,6 +103,24 @@ export interface CalibrationParameters {
 	elevationBiasDeg: number;
 }
 
+/** Where each fittable parameter lives in CalibrationParameters. */
+export const PARAMETER_FIELD: Record<ParameterName, Exclude<keyof CalibrationParameters, 'pRefPa'>> = {
+	efficiency: 'efficiency',
+	pressureSlope: 'pressureSlope',
+	lossForce: 'lossN',
+	dragCoefficient: 'dragCoefficient',
+	elevationBias: 'elevationBiasDeg'
+};
+
+/** The parameters with one of them replaced (for finite differences and sampling). */
+export function withParameter(p: CalibrationParameters, name: ParameterName, value: number): CalibrationParameters {
+	return { ...p, [PARAMETER_FIELD[name]]: value };
+}
+
+export function parameterValue(p: CalibrationParameters, name: ParameterName): number {
+	return p[PARAMETER_FIELD[name]];
+}
+
 /** A stored calibration: values, which of them were fitted, and their covariance. */
 export interface LauncherCalibration {
 	parameters: CalibrationParameters;
