@@ -4,7 +4,7 @@
 import { and, asc, count, desc, eq, inArray, isNotNull, isNull, max, sql } from 'drizzle-orm';
 import type { ShotInput, ShotUpdate } from '$lib/schemas/range';
 import { db, type Transaction } from './db';
-import { shotPredictions, shots } from './db/schema';
+import { calibrations, shotPredictions, shots } from './db/schema';
 import { recordAudit } from './audit';
 import { recomputePredictions } from './reconcile';
 import { assertWritable, lockForWrite, SessionRuleError } from './sessions';
@@ -28,8 +28,41 @@ async function byUuid(tx: Transaction, clientUuid: string) {
 /**
  * Record a shot. A resend of the same clientUuid returns the stored shot (created: false) and
  * changes nothing. Without a sequence the server assigns the next free one.
+ *
+ * Two short transactions: the first holds the session row lock only while it assigns the
+ * sequence and inserts (several tablets on one session queue on that lock, so it must be brief);
+ * the second compares the new shot with the model.
  */
 export async function create(sessionId: number, input: ShotInput, user: AppUser): Promise<{ shot: Shot; created: boolean }> {
+	const result = await insert(sessionId, input, user);
+	if (result.created) await predictNewShot(result.shot.id, result.rigId, result.projectileId);
+	return { shot: result.shot, created: result.created };
+}
+
+/**
+ * The prediction of a shot just stored. It share-locks the pair's calibrations first, which an
+ * approval locks for update while it recomputes every shot of the pair: so this prediction either
+ * waits for the approval (and then uses the new calibration) or the approval waits for it (and
+ * then recomputes this shot too). Never a stale prediction written after an approval.
+ */
+async function predictNewShot(shotId: number, rigId: number, projectileId: number) {
+	try {
+		await db.transaction(async (tx) => {
+			await tx
+				.select({ id: calibrations.id })
+				.from(calibrations)
+				.where(and(eq(calibrations.rigId, rigId), eq(calibrations.projectileId, projectileId)))
+				.for('share');
+			await recomputePredictions(tx, { shotIds: [shotId] });
+		});
+	} catch (err) {
+		// The shot is stored either way; a failed prediction is recomputed by the next change to
+		// the session, rig or calibration, and the session's statistics count it as not predicted.
+		console.error(`Prediction of shot ${shotId} failed:`, err);
+	}
+}
+
+async function insert(sessionId: number, input: ShotInput, user: AppUser) {
 	try {
 		return await db.transaction(async (tx) => {
 			const session = await lockForWrite(tx, sessionId);
@@ -37,7 +70,7 @@ export async function create(sessionId: number, input: ShotInput, user: AppUser)
 			if (existing) {
 				if (existing.sessionId !== sessionId)
 					throw new SessionRuleError('clientUuid', 'This clientUuid belongs to a shot of another session.', 409);
-				return { shot: existing, created: false };
+				return { shot: existing, created: false, rigId: session.rigId, projectileId: session.projectileId };
 			}
 			assertWritable(session, user);
 			let sequence = input.sequence ?? null;
@@ -56,9 +89,8 @@ export async function create(sessionId: number, input: ShotInput, user: AppUser)
 					enteredBy: user.id
 				})
 				.$returningId();
-			await recomputePredictions(tx, { shotIds: [created.id] });
 			const [row] = await tx.select().from(shots).where(eq(shots.id, created.id));
-			return { shot: row, created: true };
+			return { shot: row, created: true, rigId: session.rigId, projectileId: session.projectileId };
 		});
 	} catch (err) {
 		if (isDuplicate(err, 'shots_session_sequence_unique'))
@@ -66,7 +98,7 @@ export async function create(sessionId: number, input: ShotInput, user: AppUser)
 		if (isDuplicate(err, 'shots_client_uuid_unique')) {
 			// Two sends of one shot raced; the first one won. Answer like a resend.
 			const [row] = await db.select().from(shots).where(eq(shots.clientUuid, input.clientUuid));
-			if (row && row.sessionId === sessionId) return { shot: row, created: false };
+			if (row && row.sessionId === sessionId) return { shot: row, created: false, rigId: 0, projectileId: 0 };
 		}
 		throw err;
 	}
