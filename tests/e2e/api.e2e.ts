@@ -72,7 +72,7 @@ test('a resend of the same clientUuid stores one shot and answers 200 with the s
 	expect(first.status()).toBe(201);
 	const created = await first.json();
 	expect(created).toMatchObject({ sessionId, sequence: 1, clientUuid: body.clientUuid, fillGaugePa: 220_000 });
-	// The prediction is computed in the same transaction as the shot.
+	// The prediction is computed before the answer goes back.
 	expect(created.prediction?.predictedMuzzleMps).toBeGreaterThan(0);
 
 	const again = await officer.post(`/api/v1/sessions/${sessionId}/shots`, { ...body, muzzleSpeedMps: 99 });

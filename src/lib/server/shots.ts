@@ -48,11 +48,10 @@ export async function create(sessionId: number, input: ShotInput, user: AppUser)
 async function predictNewShot(shotId: number, rigId: number, projectileId: number) {
 	try {
 		await db.transaction(async (tx) => {
-			await tx
-				.select({ id: calibrations.id })
-				.from(calibrations)
-				.where(and(eq(calibrations.rigId, rigId), eq(calibrations.projectileId, projectileId)))
-				.for('share');
+			// MariaDB spells the shared lock LOCK IN SHARE MODE (10.11 has no FOR SHARE).
+			await tx.execute(
+				sql`SELECT ${calibrations.id} FROM ${calibrations} WHERE ${calibrations.rigId} = ${rigId} AND ${calibrations.projectileId} = ${projectileId} LOCK IN SHARE MODE`
+			);
 			await recomputePredictions(tx, { shotIds: [shotId] });
 		});
 	} catch (err) {
