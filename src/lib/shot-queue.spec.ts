@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { flushQueue, loadQueue, saveQueue, uuidV4, type QueuedShot } from './shot-queue';
+import { flushQueue, loadQueue, queueAfterFlush, saveQueue, uuidV4, type QueuedShot } from './shot-queue';
 
 class MemoryStorage {
 	private data = new Map<string, string>();
@@ -61,5 +61,18 @@ describe('shot outbox', () => {
 		expect(result.queue[0].error).toBe('Fill pressure must be at least 0 Pa.');
 		const again = await flushQueue(1, result.queue, async () => ({ ok: true }));
 		expect(again.sent).toBe(0);
+	});
+
+	it('keeps a shot logged while a flush was sending (the flush only knew its snapshot)', async () => {
+		const first = shot(1);
+		const snapshot = [first];
+		let current = snapshot;
+		const late = shot(2);
+		const result = await flushQueue(1, snapshot, async () => {
+			current = [...current, late];
+			return { ok: true };
+		});
+		expect(result.queue).toEqual([]);
+		expect(queueAfterFlush(snapshot, current, result.queue)).toEqual([late]);
 	});
 });

@@ -91,3 +91,13 @@ export async function flushQueue(
 	}
 	return { queue: remaining, sent, stoppedBecause: null };
 }
+
+/**
+ * The queue after a flush: what the flush kept (refused or unsent, in order), then the shots
+ * logged while it was sending, which were not in its snapshot. Without this a flush would
+ * overwrite the queue with its snapshot and lose a shot logged mid-flight.
+ */
+export function queueAfterFlush(snapshot: QueuedShot[], current: QueuedShot[], kept: QueuedShot[]): QueuedShot[] {
+	const seen = new Set(snapshot.map((q) => q.clientUuid));
+	return [...kept, ...current.filter((q) => !seen.has(q.clientUuid))];
+}

@@ -56,6 +56,8 @@ test('a range officer logs 25 shots through a network outage and a reload; each 
 		await logShot(page, n);
 		await expect(page.getByTestId('queue-count')).toHaveText('0 waiting to send');
 		await expect(page.getByTestId('feedback')).toContainText('Saved');
+		// The page reloads its data after each save; wait for it, as an officer glances at the table.
+		await expect(page.getByTestId('recent-shot').first().locator('td').first()).toHaveText(String(n));
 	}
 
 	await context.setOffline(true);
