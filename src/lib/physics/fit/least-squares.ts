@@ -4,7 +4,7 @@
 // Sources:
 // - K. Levenberg, Q. Appl. Math. 2 (1944) 164-168; D.W. Marquardt, J. SIAM 11 (1963) 431-441.
 // - J.J. Moré, "The Levenberg-Marquardt algorithm: implementation and theory", Numerical
-//   Analysis (Dundee 1977), Lecture Notes in Math. 630 (1978) 105-116, and its code MINPACK-1
+//   Analysis (Dundee 1977), Springer LNM vol. 630 (1978) 105-116, and its code MINPACK-1
 //   `lmder`/`lmpar`/`qrsolv` (Moré, Garbow & Hillstrom, ANL-80-74, 1980): the trust-region
 //   radius, the LM parameter by safeguarded Newton on ‖D·p(λ)‖ = Δ, and the termination tests
 //   below follow that code (from memory).
