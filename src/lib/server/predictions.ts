@@ -7,6 +7,7 @@ import { predictShot, type LauncherCalibration, type LauncherRig, type Projectil
 import type { PredictionInput } from '$lib/schemas/prediction';
 import { db } from './db';
 import { calibrationInForce } from './reconcile';
+import { nominalModel } from './reconcile/model';
 import { projectiles, type Projectile as ProjectileRow } from './projectiles';
 import { rigs, type Rig } from './rigs';
 
@@ -56,18 +57,6 @@ async function registryRow<T extends { deletedAt: Date | null }>(find: Promise<T
 	return row;
 }
 
-/** The nominal model: the rig's nominal efficiency and the projectile's nominal C_D, nothing fitted. */
-function nominalCalibration(rig: ModelRig, projectile: ModelProjectile): LauncherCalibration {
-	return {
-		// pRefPa only scales the pressure slope, which is zero here; any positive value will do.
-		parameters: { efficiency: rig.nominalEfficiency, pressureSlope: 0, pRefPa: rig.ratedPressurePa, lossN: 0, dragCoefficient: projectile.nominalDragCoefficient, elevationBiasDeg: 0 },
-		fitted: [],
-		identifiable: [],
-		covariance: [],
-		fillPressureRangePa: { min: 0, max: Infinity }
-	};
-}
-
 const UNCALIBRATED_NOTE = 'Uncalibrated: the rig’s nominal efficiency and the projectile’s nominal drag coefficient.';
 
 export async function predictSetup(input: PredictionInput): Promise<SetupPrediction> {
@@ -97,7 +86,7 @@ export async function predictSetup(input: PredictionInput): Promise<SetupPredict
 			note: inForce.uncalibrated ? `${UNCALIBRATED_NOTE} No calibration of this pair is approved yet.` : `Calibration ${inForce.calibrationId}, approved for this rig and projectile.`
 		};
 	} else {
-		model = nominalCalibration(rig, projectile);
+		model = nominalModel(rig, projectile);
 		calibration = {
 			status: 'uncalibrated',
 			calibrationId: null,

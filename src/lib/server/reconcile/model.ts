@@ -168,7 +168,10 @@ export class ConditionsCache {
 }
 
 /** Nominal model: the rig's nominal efficiency, the projectile's nominal C_D, nothing else. */
-export function nominalModel(rig: RigRow, projectile: ProjectileRow): LauncherCalibration {
+export function nominalModel(
+	rig: Pick<RigRow, 'nominalEfficiency' | 'ratedPressurePa'>,
+	projectile: Pick<ProjectileRow, 'nominalDragCoefficient'>
+): LauncherCalibration {
 	return {
 		parameters: {
 			efficiency: rig.nominalEfficiency,
