@@ -15,12 +15,13 @@
 
 import { spawn, type ChildProcess } from 'node:child_process';
 import { randomUUID } from 'node:crypto';
-import { existsSync, readdirSync, statSync } from 'node:fs';
+import http from 'node:http';
+import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
 import { availableParallelism, cpus, loadavg } from 'node:os';
 import path from 'node:path';
 import { performance } from 'node:perf_hooks';
 import { build } from '../lib/bootstrap.mjs';
-import { ensureDatabase, ensureServer } from '../lib/db.mjs';
+import { ensureDatabase, ensureServer, privateServer } from '../lib/db.mjs';
 import { localSecret, main, portInUse, ROOT, SetupError, step } from '../lib/common.mjs';
 import { DEMO_PASSWORD, DEMO_USERS } from '../lib/demo-users.mjs';
 import { createDatabase } from '../../src/lib/server/db/client.ts';
@@ -101,7 +102,9 @@ async function startServer(databaseUrl: string): Promise<{ child: ChildProcess; 
 		fail(`port ${BENCH_PORT} on ${HOST} is in use.`, 'stop the program that uses it, or choose another port with SHOTWRIGHT_BENCH_PORT=<port>.');
 	step(`Starting the app on ${ORIGIN}…`);
 	let output = '';
-	const child = spawn(process.execPath, ['build'], {
+	// SHOTWRIGHT_BENCH_NODE_ARGS passes flags to the server's node, e.g. "--cpu-prof" for a profile.
+	const nodeArgs = (process.env.SHOTWRIGHT_BENCH_NODE_ARGS ?? '').split(/\s+/).filter(Boolean);
+	const child = spawn(process.execPath, [...nodeArgs, 'build'], {
 		cwd: ROOT,
 		env: {
 			...process.env,
@@ -195,27 +198,48 @@ function shotBody(i: number) {
 	};
 }
 
-/** `clients` closed-loop clients posting shots until `until` (performance.now() ms) or the shot bound. */
+/** One POST on a kept-alive connection of `agent`; resolves with the status (0 on a network error or timeout). */
+function post(agent: http.Agent, url: URL, headers: Record<string, string>, body: string): Promise<number> {
+	return new Promise((resolve) => {
+		const request = http.request(
+			url,
+			{ method: 'POST', agent, headers: { ...headers, 'content-length': Buffer.byteLength(body) }, timeout: REQUEST_TIMEOUT_MS },
+			(response) => {
+				response.resume();
+				response.once('end', () => resolve(response.statusCode ?? 0));
+				response.once('error', () => resolve(0));
+			}
+		);
+		request.once('timeout', () => request.destroy(new Error('timeout')));
+		request.once('error', () => resolve(0));
+		request.end(body);
+	});
+}
+
+/**
+ * `clients` closed-loop clients posting shots until `until` (performance.now() ms) or the shot
+ * bound. Node's own http client with one kept-alive connection per client, as a tablet holds:
+ * the load generator shares the machine's two cores with the app and MariaDB, and fetch() cost
+ * about twice its CPU per request.
+ */
 async function load(token: string, sessionId: number, clients: number, until: number, counter: { sent: number }) {
-	const url = `${ORIGIN}/api/v1/sessions/${sessionId}/shots`;
+	const url = new URL(`${ORIGIN}/api/v1/sessions/${sessionId}/shots`);
 	const headers = { 'content-type': 'application/json', accept: 'application/json', authorization: `Bearer ${token}` };
+	const agent = new http.Agent({ keepAlive: true, maxSockets: clients });
 	const samples: Sample[] = [];
 	const client = async () => {
 		while (performance.now() < until && counter.sent < MAX_SHOTS) {
 			const body = JSON.stringify(shotBody(counter.sent++));
 			const started = performance.now();
-			let status = 0;
-			try {
-				const r = await fetch(url, { method: 'POST', headers, body, signal: AbortSignal.timeout(REQUEST_TIMEOUT_MS) });
-				await r.arrayBuffer();
-				status = r.status;
-			} catch {
-				status = 0;
-			}
+			const status = await post(agent, url, headers, body);
 			samples.push({ ms: performance.now() - started, status });
 		}
 	};
-	await Promise.all(Array.from({ length: clients }, client));
+	try {
+		await Promise.all(Array.from({ length: clients }, client));
+	} finally {
+		agent.destroy();
+	}
 	return samples;
 }
 
@@ -225,15 +249,92 @@ function percentile(sorted: number[], p: number) {
 	return sorted[rank];
 }
 
-type Pass = { clients: number; seconds: number; stored: number; failed: number; latencies: number[] };
+/** CPU seconds (user + system) a process has used so far, from /proc (Linux); null elsewhere. */
+function cpuSecondsOf(pid: number | undefined): number | null {
+	if (!pid) return null;
+	try {
+		// Fields after the command name (which may hold spaces) start at field 3; utime and stime are 14 and 15.
+		const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
+		return (Number(fields[11]) + Number(fields[12])) / 100; // USER_HZ is 100 on Linux
+	} catch {
+		return null;
+	}
+}
 
-async function measure(token: string, sessionId: number, clients: number, runMs: number, counter: { sent: number }): Promise<Pass> {
+function mariadbPid(): number | undefined {
+	try {
+		return Number(readFileSync(privateServer().pidFile, 'utf8').trim()) || undefined;
+	} catch {
+		return undefined;
+	}
+}
+
+/** Busy and total CPU seconds of the whole machine (all cores), from /proc/stat; null elsewhere. */
+function machineCpu(): { busy: number; total: number } | null {
+	try {
+		const [, ...ticks] = readFileSync('/proc/stat', 'utf8').split('\n')[0].trim().split(/\s+/).map(Number);
+		const total = ticks.slice(0, 8).reduce((a, b) => a + b, 0);
+		const idle = ticks[3] + ticks[4]; // idle + iowait
+		return { busy: (total - idle) / 100, total: total / 100 };
+	} catch {
+		return null;
+	}
+}
+
+/**
+ * CPU used by the app, MariaDB and this load generator over a pass, and the whole machine's busy
+ * share: where the two cores went (the rest of "busy" is the kernel's network stack and other
+ * programs).
+ */
+type CpuUse = { app: number | null; mariadb: number | null; loadGenerator: number; machine: { busy: number; total: number } | null };
+
+function cpuSnapshot(appPid: number | undefined): CpuUse {
+	const own = process.cpuUsage();
+	return { app: cpuSecondsOf(appPid), mariadb: cpuSecondsOf(mariadbPid()), loadGenerator: (own.user + own.system) / 1e6, machine: machineCpu() };
+}
+
+function cpuBetween(a: CpuUse, b: CpuUse): CpuUse {
+	const diff = (x: number | null, y: number | null) => (x === null || y === null ? null : y - x);
+	return {
+		app: diff(a.app, b.app),
+		mariadb: diff(a.mariadb, b.mariadb),
+		loadGenerator: b.loadGenerator - a.loadGenerator,
+		machine: a.machine && b.machine ? { busy: b.machine.busy - a.machine.busy, total: b.machine.total - a.machine.total } : null
+	};
+}
+
+type Pass = { clients: number; seconds: number; stored: number; failed: number; latencies: number[]; cpu: CpuUse };
+
+async function measure(
+	token: string,
+	sessionId: number,
+	clients: number,
+	runMs: number,
+	counter: { sent: number },
+	appPid: number | undefined
+): Promise<Pass> {
 	step(`Measuring: ${clients} client${clients === 1 ? '' : 's'} posting shots for ${runMs / 1000} s…`);
+	const cpuBefore = cpuSnapshot(appPid);
 	const started = performance.now();
 	const samples = await load(token, sessionId, clients, started + runMs, counter);
 	const seconds = (performance.now() - started) / 1000;
+	const cpu = cpuBetween(cpuBefore, cpuSnapshot(appPid));
 	const stored = samples.filter((s) => s.status === 201);
-	return { clients, seconds, stored: stored.length, failed: samples.length - stored.length, latencies: stored.map((s) => s.ms).sort((a, b) => a - b) };
+	return {
+		clients,
+		seconds,
+		stored: stored.length,
+		failed: samples.length - stored.length,
+		latencies: stored.map((s) => s.ms).sort((a, b) => a - b),
+		cpu
+	};
+}
+
+/** CPU milliseconds per stored shot of each process, e.g. "app 2.1 · MariaDB 0.9 · load 0.4". */
+function cpuPerShot(p: Pass) {
+	const per = (s: number | null) => (s === null || p.stored === 0 ? 'n/a' : ((1000 * s) / p.stored).toFixed(2));
+	const machine = p.cpu.machine ? ` · whole machine ${per(p.cpu.machine.busy)} (${((100 * p.cpu.machine.busy) / p.cpu.machine.total).toFixed(0)} % busy)` : '';
+	return `app ${per(p.cpu.app)} · MariaDB ${per(p.cpu.mariadb)} · load generator ${per(p.cpu.loadGenerator)}${machine}`;
 }
 
 function row(p: Pass) {
@@ -258,8 +359,8 @@ async function bench() {
 		step(`Warming up for ${WARM_UP_MS / 1000} s…`);
 		const warmUp = await load(token, sessionId, CLIENTS, performance.now() + WARM_UP_MS, counter);
 		// One client alone first: the time one request takes when nothing queues behind the lock.
-		const single = await measure(token, sessionId, 1, SINGLE_CLIENT_MS, counter);
-		const main = await measure(token, sessionId, CLIENTS, RUN_MS, counter);
+		const single = await measure(token, sessionId, 1, SINGLE_CLIENT_MS, counter, child.pid);
+		const main = await measure(token, sessionId, CLIENTS, RUN_MS, counter, child.pid);
 
 		const stored = await call('GET', `/api/v1/sessions/${sessionId}/shots?pageSize=1`, token);
 		const expected = warmUp.filter((s) => s.status === 201).length + single.stored + main.stored;
@@ -274,6 +375,7 @@ async function bench() {
 		console.log(row(single));
 		console.log(row(main));
 		console.log('');
+		console.log(`CPU ms per shot (${CLIENTS} clients): ${cpuPerShot(main)}; one client: ${cpuPerShot(single)}.`);
 		console.log(`Target p99 < ${TARGET_P99_MS} ms with ${CLIENTS} clients: ${p99 < TARGET_P99_MS ? 'met' : 'NOT met'} (${p99.toFixed(1)} ms).`);
 		console.log(
 			stored.total === expected

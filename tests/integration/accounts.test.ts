@@ -145,7 +145,11 @@ describe('API tokens', () => {
 		expect(JSON.stringify(audit)).not.toContain(created.token);
 		expect(audit).toMatchObject({ userId: owner.id, after: { name: 'chronograph uploader' } });
 
-		expect(await accounts.tokens.resolveBearerToken(created.token)).toEqual({ id: created.id, userId: owner.id });
+		expect(await accounts.tokens.resolveBearerToken(created.token)).toEqual({
+			id: created.id,
+			userId: owner.id,
+			user: owner
+		});
 		const [used] = await scratch.db.select().from(apiTokens).where(eq(apiTokens.id, created.id));
 		expect(used.lastUsedAt).toBeInstanceOf(Date);
 
@@ -167,6 +171,12 @@ describe('API tokens', () => {
 		expect(await accounts.tokens.revokeApiToken(owner.id, id, admin.id)).toBe(true);
 		const [audit] = await auditFor('api_token_revoked', id);
 		expect(audit.userId).toBe(admin.id);
+	});
+
+	it('a disabled owner’s token resolves without a user (the request then acts as signed out)', async () => {
+		const owner = await makeUser('range_officer', { disabledAt: new Date() });
+		const created = await accounts.tokens.createApiToken(owner.id, 'old tablet');
+		expect(await accounts.tokens.resolveBearerToken(created.token)).toEqual({ id: created.id, userId: owner.id, user: null });
 	});
 
 	it('a made-up or malformed token resolves to nothing', async () => {

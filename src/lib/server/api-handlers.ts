@@ -234,7 +234,7 @@ export const shotApi = {
 		const id = sessionId(event);
 		const input = await parseBody(event.request, shotInput);
 		const { shot, created } = await shots.create(id, input, user);
-		return ok((await shots.getWithPrediction(shot.id)) ?? shot, created ? 201 : 200);
+		return ok(shot, created ? 201 : 200);
 	}),
 	get: endpoint(async (event) => {
 		await requireUser(event);

@@ -3,11 +3,13 @@
 // session row lock makes server-assigned sequence numbers distinct across several tablets.
 import { and, asc, count, desc, eq, inArray, isNotNull, isNull, max, sql } from 'drizzle-orm';
 import type { ShotInput, ShotUpdate } from '$lib/schemas/range';
-import { db, type Transaction } from './db';
-import { calibrations, shotPredictions, shots } from './db/schema';
+import { db, pool } from './db';
+import * as raw from './db/raw';
+import { name, selectList, tableName } from './db/raw';
+import { rangeSessions, shotPredictions, shots } from './db/schema';
 import { recordAudit } from './audit';
-import { recomputePredictions } from './reconcile';
-import { assertWritable, lockForWrite, SessionRuleError } from './sessions';
+import { predictStoredShot, recomputePredictions } from './reconcile';
+import { assertWritable, lockForWrite, SessionRuleError, type RangeSession } from './sessions';
 import { pageOf } from './listing';
 
 export type Shot = typeof shots.$inferSelect;
@@ -20,87 +22,98 @@ function isDuplicate(err: unknown, index: string) {
 	return code === 'ER_DUP_ENTRY' && message.includes(index);
 }
 
-async function byUuid(tx: Transaction, clientUuid: string) {
-	const [row] = await tx.select().from(shots).where(eq(shots.clientUuid, clientUuid)).limit(1);
-	return row ?? null;
-}
+// Logging a shot is the hottest write (several tablets on one session, scripts posting files
+// shot by shot), so it runs as hand-written SQL on a raw connection (db/raw.ts says why).
+const SESSION_FOR_UPDATE = `SELECT ${selectList(rangeSessions)} FROM ${tableName(rangeSessions)} WHERE ${name(rangeSessions.id)} = ? FOR UPDATE`;
+const SHOT_BY_UUID = `SELECT ${selectList(shots)} FROM ${tableName(shots)} WHERE ${name(shots.clientUuid)} = ?`;
+/** The session's last sequence number and whether (and where) the client's UUID is stored already. */
+const LAST_SEQUENCE_AND_UUID =
+	`SELECT (SELECT MAX(${name(shots.sequence)}) FROM ${tableName(shots)} WHERE ${name(shots.sessionId)} = ?) AS last_sequence, ` +
+	`(SELECT ${name(shots.sessionId)} FROM ${tableName(shots)} WHERE ${name(shots.clientUuid)} = ?) AS uuid_session_id`;
 
 /**
- * Record a shot. A resend of the same clientUuid returns the stored shot (created: false) and
- * changes nothing. Without a sequence the server assigns the next free one.
+ * Record a shot and compare it with the model; the stored shot with its prediction is returned.
+ * A resend of the same clientUuid returns the stored shot (created: false) and changes nothing.
+ * Without a sequence the server assigns the next free one.
  *
  * Two short transactions: the first holds the session row lock only while it assigns the
  * sequence and inserts (several tablets on one session queue on that lock, so it must be brief);
- * the second compares the new shot with the model.
+ * the second compares the new shot with the model (reconcile's predictStoredShot, which
+ * share-locks the pair's calibrations so an approval running meanwhile cannot leave it stale).
  */
-export async function create(sessionId: number, input: ShotInput, user: AppUser): Promise<{ shot: Shot; created: boolean }> {
+export async function create(sessionId: number, input: ShotInput, user: AppUser): Promise<{ shot: ShotWithPrediction; created: boolean }> {
 	const result = await insert(sessionId, input, user);
-	if (result.created) await predictNewShot(result.shot.id, result.rigId, result.projectileId);
-	return { shot: result.shot, created: result.created };
+	if (!result.created) {
+		const stored = await getWithPrediction(result.shot.id);
+		if (!stored) throw new Error(`shot ${result.shot.id} vanished after it was stored`);
+		return { shot: stored, created: false };
+	}
+	// The stored rows are known without reading them back (raw.insertedRow).
+	return { shot: { ...result.shot, prediction: await predictNewShot(result.shot, result.session) }, created: true };
 }
 
-/**
- * The prediction of a shot just stored. It share-locks the pair's calibrations first, which an
- * approval locks for update while it recomputes every shot of the pair: so this prediction either
- * waits for the approval (and then uses the new calibration) or the approval waits for it (and
- * then recomputes this shot too). Never a stale prediction written after an approval.
- */
-async function predictNewShot(shotId: number, rigId: number, projectileId: number) {
+async function predictNewShot(shot: Shot, session: RangeSession) {
 	try {
-		await db.transaction(async (tx) => {
-			// MariaDB spells the shared lock LOCK IN SHARE MODE (10.11 has no FOR SHARE).
-			await tx.execute(
-				sql`SELECT ${calibrations.id} FROM ${calibrations} WHERE ${calibrations.rigId} = ${rigId} AND ${calibrations.projectileId} = ${projectileId} LOCK IN SHARE MODE`
-			);
-			await recomputePredictions(tx, { shotIds: [shotId] });
-		});
+		return await raw.transaction((connection) => predictStoredShot(connection, shot, session));
 	} catch (err) {
 		// The shot is stored either way; a failed prediction is recomputed by the next change to
 		// the session, rig or calibration, and the session's statistics count it as not predicted.
-		console.error(`Prediction of shot ${shotId} failed:`, err);
+		console.error(`Prediction of shot ${shot.id} failed:`, err);
+		return null;
 	}
 }
 
-async function insert(sessionId: number, input: ShotInput, user: AppUser) {
+type Inserted = { shot: Shot; session: RangeSession; created: true } | { shot: { id: number }; created: false };
+
+async function insert(sessionId: number, input: ShotInput, user: AppUser): Promise<Inserted> {
 	try {
-		return await db.transaction(async (tx) => {
-			const session = await lockForWrite(tx, sessionId);
-			const existing = await byUuid(tx, input.clientUuid);
-			if (existing) {
-				if (existing.sessionId !== sessionId)
-					throw new SessionRuleError('clientUuid', 'This clientUuid belongs to a shot of another session.', 409);
-				return { shot: existing, created: false, rigId: session.rigId, projectileId: session.projectileId };
-			}
-			assertWritable(session, user);
-			let sequence = input.sequence ?? null;
-			if (sequence === null) {
-				const [last] = await tx.select({ n: max(shots.sequence) }).from(shots).where(eq(shots.sessionId, sessionId));
-				sequence = (last?.n ?? 0) + 1;
-			}
-			const [created] = await tx
-				.insert(shots)
-				.values({
-					...input,
+		return await raw.transaction(async (connection): Promise<Inserted> => {
+			// The locking read runs first: the consistent read queued behind it then sees every shot
+			// committed by the previous holder of the lock.
+			const [[sessionRaw], [found]] = await Promise.all([
+				raw.query(connection, SESSION_FOR_UPDATE, [sessionId]),
+				raw.query<{ last_sequence: number | null; uuid_session_id: number | null }>(connection, LAST_SEQUENCE_AND_UUID, [
 					sessionId,
-					sequence,
-					firedAt: input.firedAt ?? new Date(),
-					miss: input.miss ?? false,
-					enteredBy: user.id
-				})
-				.$returningId();
-			const [row] = await tx.select().from(shots).where(eq(shots.id, created.id));
-			return { shot: row, created: true, rigId: session.rigId, projectileId: session.projectileId };
+					input.clientUuid
+				])
+			]);
+			const session = sessionRaw ? raw.rowOf(rangeSessions, sessionRaw) : null;
+			if (!session || session.deletedAt) throw new SessionRuleError('sessionId', `No range session with id ${sessionId}.`, 404);
+			if (found.uuid_session_id !== null) return resent(connection, sessionId, input.clientUuid);
+			assertWritable(session, user);
+			// Every column with a default is given, so the stored row is known (raw.insertedRow).
+			const now = new Date();
+			const values = {
+				...input,
+				sessionId,
+				sequence: input.sequence ?? (found.last_sequence ?? 0) + 1,
+				firedAt: input.firedAt ?? now,
+				miss: input.miss ?? false,
+				enteredBy: user.id,
+				createdAt: now,
+				updatedAt: now
+			};
+			const statement = raw.insertStatement(shots, values);
+			const { insertId } = await raw.execute(connection, statement.sql, statement.values);
+			return { shot: raw.insertedRow(shots, { ...values, id: insertId }), session, created: true };
 		});
 	} catch (err) {
 		if (isDuplicate(err, 'shots_session_sequence_unique'))
 			throw new SessionRuleError('sequence', `Sequence number ${input.sequence} is already taken in this session.`, 409);
-		if (isDuplicate(err, 'shots_client_uuid_unique')) {
-			// Two sends of one shot raced; the first one won. Answer like a resend.
-			const [row] = await db.select().from(shots).where(eq(shots.clientUuid, input.clientUuid));
-			if (row && row.sessionId === sessionId) return { shot: row, created: false, rigId: 0, projectileId: 0 };
-		}
+		// Two sends of one shot raced; the first one won. Answer like a resend.
+		if (isDuplicate(err, 'shots_client_uuid_unique')) return resent(pool().pool, sessionId, input.clientUuid);
 		throw err;
 	}
+}
+
+/** The stored shot of a resent clientUuid; 409 when the UUID belongs to another session's shot. */
+async function resent(connection: raw.Queryable, sessionId: number, clientUuid: string): Promise<Inserted> {
+	const [row] = await raw.query(connection, SHOT_BY_UUID, [clientUuid]);
+	const shot = row ? raw.rowOf(shots, row) : null;
+	if (!shot) throw new Error(`the shot with clientUuid ${clientUuid} was reported stored but is not`);
+	if (shot.sessionId !== sessionId)
+		throw new SessionRuleError('clientUuid', 'This clientUuid belongs to a shot of another session.', 409);
+	return { shot: { id: shot.id }, created: false };
 }
 
 export async function get(shotId: number) {

@@ -6,6 +6,11 @@ import { isRole } from '$lib/roles';
 /** The user as stored now, or null when missing or disabled (a disabled account acts as signed out). */
 export async function findActiveUser(id: number): Promise<AppUser | null> {
 	const [row] = await db.select().from(users).where(eq(users.id, id)).limit(1);
+	return activeUserOf(row);
+}
+
+/** The user row as the request's user, or null when missing or disabled. */
+export function activeUserOf(row: typeof users.$inferSelect | undefined | null): AppUser | null {
 	if (!row || row.disabledAt || !isRole(row.role)) return null;
 	return { id: row.id, email: row.email, name: row.name, role: row.role, unitPreferences: row.unitPreferences ?? null };
 }

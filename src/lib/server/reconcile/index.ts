@@ -14,6 +14,8 @@
 //   basis), in pages. Call it in the transaction of every change a prediction depends on: a shot
 //   logged, imported or edited; a session's geometry, conditions or plan; a rig's nominal η or a
 //   projectile's nominal C_D (by rigId / projectileId) — approval does its own.
+// - predictStoredShot(connection, shot, session): the same for one shot just logged, on a raw
+//   connection in its own transaction (the fast path behind POST …/shots; db/raw.ts).
 // - judgeSpeed / judgeImpact: the pass/fail rules on their own (for live previews and tests).
 //
 // Calibrations
@@ -46,7 +48,9 @@ export {
 	judgeImpact,
 	judgeSpeed,
 	PREDICTION_PAGE_SIZE,
+	predictStoredShot,
 	recomputePredictions,
+	type PredictedShot,
 	type RecomputeResult,
 	type RecomputeSelection,
 	type SpeedJudgement

@@ -227,6 +227,37 @@ function pairKey(rigId: number, projectileId: number) {
 }
 
 /**
+ * The calibration in force for one pair from its rows: the rig, the projectile (undefined when
+ * missing → ReconcileError 404) and the pair's calibrations (any status; the approved one is used).
+ */
+export function inForceOf(
+	rig: RigRow | undefined,
+	projectile: ProjectileRow | undefined,
+	pairCalibrations: readonly CalibrationRow[],
+	ids: { rigId: number; projectileId: number }
+): CalibrationInForce {
+	if (!rig) throw new ReconcileError('rigId', `No rig with id ${ids.rigId}.`, 404);
+	if (!projectile) throw new ReconcileError('projectileId', `No projectile with id ${ids.projectileId}.`, 404);
+	let record: CalibrationRow | null = null;
+	for (const row of pairCalibrations) {
+		if (row.status !== 'approved') continue;
+		// approveCalibration keeps one approved row per pair; should two ever coexist, the newer wins.
+		if (!record || (row.approvedAt?.getTime() ?? 0) > (record.approvedAt?.getTime() ?? 0)) record = row;
+	}
+	return {
+		rigId: ids.rigId,
+		projectileId: ids.projectileId,
+		calibrationId: record?.id ?? null,
+		uncalibrated: record === null,
+		approvedAt: record?.approvedAt ?? null,
+		record,
+		rig,
+		projectile,
+		model: record ? storedModel(record, projectile) : nominalModel(rig, projectile)
+	};
+}
+
+/**
  * The calibration in force for each pair, in three queries whatever the number of pairs.
  * Throws ReconcileError(404) when a rig or projectile does not exist.
  */
@@ -254,32 +285,11 @@ export async function calibrationsInForce(
 	]);
 	const rigById = new Map(rigRows.map((r) => [r.id, r]));
 	const projectileById = new Map(projectileRows.map((p) => [p.id, p]));
-	const approvedByPair = new Map<string, CalibrationRow>();
-	for (const row of approved) {
-		const key = pairKey(row.rigId, row.projectileId);
-		const held = approvedByPair.get(key);
-		// approveCalibration keeps one approved row per pair; should two ever coexist, the newer wins.
-		if (!held || (row.approvedAt?.getTime() ?? 0) > (held.approvedAt?.getTime() ?? 0)) approvedByPair.set(key, row);
-	}
 	for (const { rigId, projectileId } of pairs) {
 		const key = pairKey(rigId, projectileId);
 		if (out.has(key)) continue;
-		const rig = rigById.get(rigId);
-		if (!rig) throw new ReconcileError('rigId', `No rig with id ${rigId}.`, 404);
-		const projectile = projectileById.get(projectileId);
-		if (!projectile) throw new ReconcileError('projectileId', `No projectile with id ${projectileId}.`, 404);
-		const record = approvedByPair.get(key) ?? null;
-		out.set(key, {
-			rigId,
-			projectileId,
-			calibrationId: record?.id ?? null,
-			uncalibrated: record === null,
-			approvedAt: record?.approvedAt ?? null,
-			record,
-			rig,
-			projectile,
-			model: record ? storedModel(record, projectile) : nominalModel(rig, projectile)
-		});
+		const ofPair = approved.filter((c) => c.rigId === rigId && c.projectileId === projectileId);
+		out.set(key, inForceOf(rigById.get(rigId), projectileById.get(projectileId), ofPair, { rigId, projectileId }));
 	}
 	return out;
 }

@@ -7,15 +7,16 @@
 // shots in pages and writes one multi-row upsert per page; sessions, plans and calibrations are
 // loaded once per page for whatever the page needs that is not cached yet.
 import { and, asc, eq, getTableName, gt, inArray, notInArray, sql } from 'drizzle-orm';
-import { toSnakeCase } from 'drizzle-orm/casing';
 import mysql from 'mysql2';
 import { PhysicsInputError } from '$lib/physics/errors';
 import { predictShot, type ShotPredictionResult, type ShotSetup } from '$lib/physics/fit/launcher';
-import { rangeSessions, shotPredictions, shots, testPlans, type SpeedBasis } from '../db/schema';
+import { calibrations, projectiles, rangeSessions, rigs, shotPredictions, shots, testPlans, type SpeedBasis } from '../db/schema';
+import { columnName, execute, insertedRow, name, query, rowOf, selectList, tableName, type Connection } from '../db/raw';
 import {
 	calibrationsInForce,
 	ConditionsCache,
 	inForceFor,
+	inForceOf,
 	launcherProjectile,
 	launcherRig,
 	type CalibrationInForce,
@@ -35,7 +36,7 @@ const PREDICTION_ERROR_LENGTH = 500;
 
 type ShotRow = typeof shots.$inferSelect;
 /** The shot columns a prediction reads. */
-type PredictedShot = Pick<
+export type PredictedShot = Pick<
 	ShotRow,
 	'id' | 'sessionId' | 'fillGaugePa' | 'muzzleSpeedMps' | 'downrangeSpeedMps' | 'impactXM' | 'impactYM' | 'miss' | 'temperatureC' | 'pressurePa'
 >;
@@ -212,12 +213,11 @@ function predictionRow(
  * predicting the shots (measured: ≈ 1.3 s per 20 000 rows against ≈ 0.07 s). Numbers are written
  * with JavaScript's shortest round-trip form (a valid MariaDB literal, exponent included),
  * strings through mysql2's escape — the same escaping its own client-side substitution applies.
- * Column names come from the Drizzle table, so they cannot drift from schema.ts.
+ * Column names come from the Drizzle table, so they cannot drift from schema.ts. computed_at is
+ * written from the app's clock (UTC, ms), so the single-shot path knows the stored row without
+ * reading it back.
  */
-const sqlName = (key: keyof typeof shotPredictions.$inferInsert) => {
-	const column = shotPredictions[key];
-	return column.keyAsName ? toSnakeCase(column.name) : column.name;
-};
+const sqlName = (key: keyof typeof shotPredictions.$inferInsert) => columnName(shotPredictions[key]);
 const WRITTEN_COLUMNS = [
 	'shotId',
 	'calibrationId',
@@ -237,13 +237,12 @@ const WRITTEN_COLUMNS = [
 	'outsideCalibratedPressures',
 	'predictionError'
 ] as const satisfies readonly (keyof PredictionRow)[];
-const WRITTEN_NAMES = WRITTEN_COLUMNS.map(sqlName);
+const WRITTEN_NAMES = [...WRITTEN_COLUMNS.map(sqlName), sqlName('computedAt')];
 const UPSERT_HEAD = `INSERT INTO \`${getTableName(shotPredictions)}\` (${WRITTEN_NAMES.map((n) => `\`${n}\``).join(', ')}) VALUES `;
 const UPSERT_TAIL =
 	' ON DUPLICATE KEY UPDATE ' +
 	WRITTEN_NAMES.slice(1)
 		.map((n) => `\`${n}\` = VALUES(\`${n}\`)`)
-		.concat(`\`${sqlName('computedAt')}\` = CURRENT_TIMESTAMP(3)`)
 		.join(', ');
 
 function literal(value: unknown): string {
@@ -253,10 +252,25 @@ function literal(value: unknown): string {
 	return mysql.escape(String(value));
 }
 
-function upsert(tx: Executor, rows: PredictionRow[]): Promise<unknown> {
+/** A UTC instant as DATETIME(3) text (the connections work in UTC). */
+const timeText = (at: Date) => at.toISOString().slice(0, 23).replace('T', ' ');
+
+function upsertStatement(rows: PredictionRow[], computedAt: Date): string {
+	const at = `'${timeText(computedAt)}'`;
+	const values = rows.map((row) => '(' + WRITTEN_COLUMNS.map((key) => literal(row[key])).join(',') + ',' + at + ')').join(',');
+	return UPSERT_HEAD + values + UPSERT_TAIL;
+}
+
+/** The one-row upsert with placeholders (a prepared statement: db/raw.ts) and its values. */
+const UPSERT_ONE = UPSERT_HEAD + '(' + WRITTEN_NAMES.map(() => '?').join(', ') + ')' + UPSERT_TAIL;
+function upsertOneValues(row: PredictionRow, computedAt: Date): unknown[] {
+	const value = (v: unknown) => (v === undefined || (typeof v === 'number' && !Number.isFinite(v)) ? null : v);
+	return [...WRITTEN_COLUMNS.map((key) => value(row[key])), timeText(computedAt)];
+}
+
+function upsert(tx: Executor, rows: PredictionRow[], computedAt: Date): Promise<unknown> {
 	if (rows.length === 0) return Promise.resolve();
-	const values = rows.map((row) => '(' + WRITTEN_COLUMNS.map((key) => literal(row[key])).join(',') + ')').join(',');
-	return tx.execute(sql.raw(UPSERT_HEAD + values + UPSERT_TAIL));
+	return tx.execute(sql.raw(upsertStatement(rows, computedAt)));
 }
 
 /** The shot columns a prediction reads (not notes, UUIDs, audit columns). */
@@ -327,6 +341,7 @@ function deferred<T>(promise: Promise<T>): Promise<T> {
 export async function recomputePredictions(tx: Executor, selection: RecomputeSelection): Promise<RecomputeResult> {
 	const result: RecomputeResult = { shots: 0, unpredictable: 0 };
 	const context = new Context(tx);
+	const computedAt = new Date();
 	const ofRigOrProjectile =
 		selection.rigId === undefined && selection.projectileId === undefined
 			? []
@@ -376,7 +391,7 @@ export async function recomputePredictions(tx: Executor, selection: RecomputeSel
 		await context.load(page);
 		const rows = page.map((shot) => context.row(shot));
 		await writing;
-		writing = deferred(upsert(tx, rows));
+		writing = deferred(upsert(tx, rows, computedAt));
 		result.shots += rows.length;
 		result.unpredictable += rows.filter((r) => r.predictionError !== null).length;
 	}
@@ -406,4 +421,50 @@ export async function sessionIdsOfPair(
 		.orderBy(asc(rangeSessions.id));
 	const rows = options.lock ? await query.for('update') : await query;
 	return rows.map((r) => r.id);
+}
+
+// The pair's calibrations, share-locked (see predictStoredShot), and the rig, projectile and plan
+// of a session in one join. Written once as text (db/raw.ts says why).
+const PAIR_CALIBRATIONS_LOCKED =
+	`SELECT ${selectList(calibrations)} FROM ${tableName(calibrations)} ` +
+	`WHERE ${name(calibrations.rigId)} = ? AND ${name(calibrations.projectileId)} = ? LOCK IN SHARE MODE`;
+const SESSION_REFERENCES =
+	`SELECT ${selectList(rigs, 'r')}, ${selectList(projectiles, 'p')}, ${selectList(testPlans, 'tp')} ` +
+	`FROM ${tableName(rigs)} r JOIN ${tableName(projectiles)} p ON ${name(projectiles.id, 'p')} = ? ` +
+	`LEFT JOIN ${tableName(testPlans)} tp ON ${name(testPlans.id, 'tp')} = ? ` +
+	`WHERE ${name(rigs.id, 'r')} = ?`;
+
+/**
+ * The prediction of one shot just stored, written in the caller's transaction: the fast path
+ * behind logging a shot (recomputePredictions does the same for any number of shots).
+ *
+ * It share-locks the pair's calibrations first, which an approval locks for update while it
+ * recomputes every shot of the pair: so this prediction either waits for the approval (and then
+ * uses the new calibration) or the approval waits for it (and then recomputes this shot too).
+ * Never a stale prediction written after an approval. MariaDB spells the shared lock LOCK IN
+ * SHARE MODE (10.11 has no FOR SHARE).
+ */
+export async function predictStoredShot(
+	connection: Connection,
+	shot: PredictedShot,
+	session: RangeSessionRow
+): Promise<typeof shotPredictions.$inferSelect> {
+	// The lock first; the plain read queued behind it sees what was committed before it.
+	const [pair, [refs]] = await Promise.all([
+		query(connection, PAIR_CALIBRATIONS_LOCKED, [session.rigId, session.projectileId]),
+		query<Record<string, Record<string, unknown>>>(connection, SESSION_REFERENCES, [session.projectileId, session.testPlanId, session.rigId], {
+			nestTables: true
+		})
+	]);
+	const inForce = inForceOf(
+		refs ? rowOf(rigs, refs.r) : undefined,
+		refs ? rowOf(projectiles, refs.p) : undefined,
+		pair.map((raw) => rowOf(calibrations, raw)),
+		session
+	);
+	const plan = refs && refs.tp[columnName(testPlans.id)] !== null ? rowOf(testPlans, refs.tp) : null;
+	const row = predictionRow(shot, session, plan, inForce, new ConditionsCache());
+	const computedAt = new Date();
+	await execute(connection, UPSERT_ONE, upsertOneValues(row, computedAt));
+	return insertedRow(shotPredictions, { ...row, computedAt });
 }

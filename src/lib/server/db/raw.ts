@@ -1,0 +1,169 @@
+// Hand-written SQL for the few hot paths, with rows typed and converted by the Drizzle schema.
+//
+// Why not Drizzle's query builder there: logging one shot took ≈ 19 round trips, and building
+// each statement (its SQL text rebuilt from the column objects on every call) cost as much CPU as
+// the database work itself; with 20 tablets on one session the app was CPU-bound (npm run
+// bench:api, README). Statements here are written once as text; column names and value
+// conversions still come from the Drizzle tables (getTableColumns, the columns' own
+// mapFromDriverValue/mapToDriverValue), so they cannot drift from schema.ts.
+//
+// It runs on mysql2's callback API, on the same pool as Drizzle: the promise wrapper captures a
+// stack trace for every statement, which was a measurable share of the same benchmark. Statements
+// with values are server-side prepared statements (mysql2's execute: prepared once per pooled
+// connection and cached there, then sent as binary values): MariaDB parses each text once.
+import { getTableColumns, getTableName, type Column, type InferInsertModel, type InferSelectModel, type Table } from 'drizzle-orm';
+import { toSnakeCase } from 'drizzle-orm/casing';
+import type { Pool as CorePool, PoolConnection as CorePoolConnection, QueryOptions, ResultSetHeader } from 'mysql2';
+import { pool } from './index';
+
+/** A pooled connection (inside a transaction) or the pool itself (one statement, autocommit). */
+export type Queryable = Pick<CorePoolConnection, 'query' | 'execute'> | Pick<CorePool, 'query' | 'execute'>;
+export type Connection = CorePoolConnection;
+
+/** The column's name in MariaDB (the app's Drizzle client uses snake_case casing). */
+export function columnName(column: Column): string {
+	return column.keyAsName ? toSnakeCase(column.name) : column.name;
+}
+
+/** Date-time values as text, converted by the column (as Drizzle's mysql2 driver does). */
+function typeCast(field: { type: string; string(): string | null }, next: () => unknown) {
+	return field.type === 'TIMESTAMP' || field.type === 'DATETIME' || field.type === 'DATE' ? field.string() : next();
+}
+
+function run<T>(on: Queryable, options: QueryOptions): Promise<T> {
+	const done = (resolve: (value: T) => void, reject: (err: Error) => void) => (err: Error | null, result: unknown) =>
+		err ? reject(err) : resolve(result as T);
+	return new Promise((resolve, reject) => {
+		if (options.values && (options.values as unknown[]).length > 0) (on as CorePool).execute(options, done(resolve, reject));
+		else (on as CorePool).query(options, done(resolve, reject));
+	});
+}
+
+/**
+ * A statement with `?` placeholders, run with the app's type conversions. On one connection,
+ * statements are sent in the order they are called: a caller may start the next before awaiting
+ * the previous one (it is queued in the driver, sent as soon as the answer before it arrives).
+ */
+export function query<Row = Record<string, unknown>>(
+	on: Queryable,
+	sqlText: string,
+	values: unknown[] = [],
+	options: { nestTables?: boolean } = {}
+): Promise<Row[]> {
+	return run<Row[]>(on, { sql: sqlText, values, typeCast, nestTables: options.nestTables });
+}
+
+/** The write result (insertId, affectedRows) of an INSERT, UPDATE or DELETE. */
+export function execute(on: Queryable, sqlText: string, values: unknown[] = []): Promise<ResultSetHeader> {
+	return run<ResultSetHeader>(on, { sql: sqlText, values });
+}
+
+/** `table` as a quoted identifier. */
+export function tableName(table: Table): string {
+	return `\`${getTableName(table)}\``;
+}
+
+/** `column` as a quoted identifier, optionally qualified by a table alias. */
+export function name(column: Column, alias?: string): string {
+	return (alias ? `\`${alias}\`.` : '') + `\`${columnName(column)}\``;
+}
+
+/** Per table: [property, column, column name] for every column, worked out once. */
+const layouts = new WeakMap<Table, [string, Column, string][]>();
+function layoutOf(table: Table) {
+	let layout = layouts.get(table);
+	if (!layout) {
+		layout = Object.entries(getTableColumns(table)).map(([key, column]) => [key, column, columnName(column)]);
+		layouts.set(table, layout);
+	}
+	return layout;
+}
+
+/** Every column of a table for a SELECT list, optionally qualified by an alias: "`s`.`id`, …". */
+export function selectList(table: Table, alias?: string): string {
+	return layoutOf(table)
+		.map(([, column]) => name(column, alias))
+		.join(', ');
+}
+
+/** A raw row (keyed by column name) as the table's typed row, converted as Drizzle would. */
+export function rowOf<T extends Table>(table: T, raw: Record<string, unknown>): InferSelectModel<T> {
+	const out: Record<string, unknown> = {};
+	for (const [key, column, dbName] of layoutOf(table)) {
+		const value = raw[dbName];
+		out[key] = value === null || value === undefined ? null : column.mapFromDriverValue(value);
+	}
+	return out as InferSelectModel<T>;
+}
+
+/** An INSERT of one row: the columns given (undefined ones left to their defaults), converted by the columns. */
+export function insertStatement<T extends Table>(table: T, values: InferInsertModel<T>): { sql: string; values: unknown[] } {
+	const names: string[] = [];
+	const params: unknown[] = [];
+	const given = values as Record<string, unknown>;
+	for (const [key, column, dbName] of layoutOf(table)) {
+		const value = given[key];
+		if (value === undefined) continue;
+		names.push(`\`${dbName}\``);
+		params.push(value === null ? null : column.mapToDriverValue(value));
+	}
+	return {
+		sql: `INSERT INTO ${tableName(table)} (${names.join(', ')}) VALUES (${names.map(() => '?').join(', ')})`,
+		values: params
+	};
+}
+
+/**
+ * The row an INSERT of `values` stored, without reading it back: every column of the table from
+ * `values`, null where not given. Only for inserts that give every column with a default (a
+ * column left to the database's default would be unknown here): it throws otherwise, so a
+ * default added to the schema later is caught by the first test that takes this path.
+ */
+export function insertedRow<T extends Table>(table: T, values: InferInsertModel<T>): InferSelectModel<T> {
+	const out: Record<string, unknown> = {};
+	const given = values as Record<string, unknown>;
+	for (const [key, column] of layoutOf(table)) {
+		const value = given[key];
+		if (value === undefined && (column.hasDefault || column.onUpdateFn))
+			throw new Error(`insertedRow(${getTableName(table)}): ${key} has a database default; give it a value`);
+		out[key] = value ?? null;
+	}
+	return out as InferSelectModel<T>;
+}
+
+function connect(): Promise<Connection> {
+	return new Promise((resolve, reject) => pool().pool.getConnection((err, connection) => (err ? reject(err) : resolve(connection))));
+}
+
+/**
+ * Run `work` in a transaction on one pooled connection: committed when it returns, rolled back
+ * when it throws (and the error passed on); the connection goes back to the pool either way.
+ * START TRANSACTION is queued, not awaited: `work`'s first statement follows it on the wire.
+ */
+export async function transaction<T>(work: (connection: Connection) => Promise<T>): Promise<T> {
+	const connection = await connect();
+	// A connection whose ROLLBACK or COMMIT failed is in an unknown state: closed, not pooled.
+	let usable = true;
+	try {
+		const begun = execute(connection, 'START TRANSACTION');
+		let result: T;
+		try {
+			const [, value] = await Promise.all([begun, work(connection)]);
+			result = value;
+		} catch (err) {
+			await begun.catch(() => undefined);
+			await execute(connection, 'ROLLBACK').catch(() => (usable = false));
+			throw err;
+		}
+		try {
+			await execute(connection, 'COMMIT');
+		} catch (err) {
+			usable = false;
+			throw err;
+		}
+		return result;
+	} finally {
+		if (usable) connection.release();
+		else connection.destroy();
+	}
+}
