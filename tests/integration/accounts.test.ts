@@ -31,7 +31,7 @@ beforeAll(async () => {
 	};
 });
 afterAll(async () => {
-	await accounts?.db.pool().end();
+	await accounts?.db.closeDatabase();
 	await scratch?.drop();
 });
 

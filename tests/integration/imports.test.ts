@@ -485,7 +485,7 @@ describe('POST /api/v1/imports (multipart, as a script sends it)', () => {
 		appDb = await import('../../src/lib/server/db');
 	});
 	afterAll(async () => {
-		await appDb?.pool().end();
+		await appDb?.closeDatabase();
 		process.env.DATABASE_URL = savedUrl;
 	});
 

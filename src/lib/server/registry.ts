@@ -42,8 +42,9 @@ export function registry<T extends RegistryTable, Row extends { id: number }, In
 	const { entityType } = options;
 	const sortKeys = Object.keys(options.sortable) as S[];
 
-	async function find(executor: Database | Transaction, id: number): Promise<Row | null> {
-		const [row] = await executor.select().from(t).where(eq(t.id, id)).limit(1);
+	async function find(executor: Database | Transaction, id: number, options: { lock?: boolean } = {}): Promise<Row | null> {
+		const query = executor.select().from(t).where(eq(t.id, id)).limit(1);
+		const [row] = options.lock ? await query.for('update') : await query;
 		return (row as Row | undefined) ?? null;
 	}
 
@@ -103,7 +104,10 @@ export function registry<T extends RegistryTable, Row extends { id: number }, In
 		async update(id: number, input: Partial<Input>, userId: number): Promise<Row> {
 			try {
 				return await db.transaction(async (tx) => {
-					const before = await find(tx, id);
+					// A locking read first: the recomputation's reads then see every shot committed
+					// before this row was locked, and a shot being logged (which share-locks the row
+					// while it predicts) either finishes first or reads this change.
+					const before = await find(tx, id, { lock: true });
 					if (!before) error(404, { message: `No ${entityType} with id ${id}.` });
 					await tx.update(t).set(input as never).where(eq(t.id, id));
 					await options.afterUpdate?.(tx, id);

@@ -1,14 +1,24 @@
 // Shots: logged at the firing line (tablets, possibly offline and resending), imported from
 // chronograph files, or edited by analysts. A client-made UUID makes creation idempotent; the
 // session row lock makes server-assigned sequence numbers distinct across several tablets.
-import { and, asc, count, desc, eq, inArray, isNotNull, isNull, max, sql } from 'drizzle-orm';
+import { and, asc, count, desc, eq, inArray, isNotNull, isNull, sql } from 'drizzle-orm';
 import type { ShotInput, ShotUpdate } from '$lib/schemas/range';
+import type { ResultSetHeader } from 'mysql2';
 import { db, pool } from './db';
 import * as raw from './db/raw';
 import { name, selectList, tableName } from './db/raw';
 import { rangeSessions, shotPredictions, shots } from './db/schema';
 import { recordAudit } from './audit';
-import { predictStoredShot, recomputePredictions } from './reconcile';
+import {
+	insertPredictionIfSessionUnchanged,
+	predictionInputs,
+	predictionInputsRead,
+	predictNewShot,
+	recomputePredictions,
+	type PredictionInputRows,
+	type ShotPrediction
+} from './reconcile';
+import { hasRole } from '$lib/roles';
 import { assertWritable, lockForWrite, SessionRuleError, type RangeSession } from './sessions';
 import { pageOf } from './listing';
 
@@ -23,97 +33,167 @@ function isDuplicate(err: unknown, index: string) {
 }
 
 // Logging a shot is the hottest write (several tablets on one session, scripts posting files
-// shot by shot), so it runs as hand-written SQL on a raw connection (db/raw.ts says why).
-const SESSION_FOR_UPDATE = `SELECT ${selectList(rangeSessions)} FROM ${tableName(rangeSessions)} WHERE ${name(rangeSessions.id)} = ? FOR UPDATE`;
-const SHOT_BY_UUID = `SELECT ${selectList(shots)} FROM ${tableName(shots)} WHERE ${name(shots.clientUuid)} = ?`;
-/** The session's last sequence number and whether (and where) the client's UUID is stored already. */
-const LAST_SEQUENCE_AND_UUID =
-	`SELECT (SELECT MAX(${name(shots.sequence)}) FROM ${tableName(shots)} WHERE ${name(shots.sessionId)} = ?) AS last_sequence, ` +
-	`(SELECT ${name(shots.sessionId)} FROM ${tableName(shots)} WHERE ${name(shots.clientUuid)} = ?) AS uuid_session_id`;
+// shot by shot), so it runs as hand-written SQL in batches (db/raw.ts says why).
+const SESSION_READ = `SELECT ${selectList(rangeSessions, 's')} FROM ${tableName(rangeSessions)} s WHERE ${name(rangeSessions.id, 's')} = ?`;
+const SHOT_BY_UUID = `SELECT ${name(shots.id)} AS id, ${name(shots.sessionId)} AS session_id FROM ${tableName(shots)} WHERE ${name(shots.clientUuid)} = ?`;
+/** The next free sequence number of the session, into @next_sequence (read after the session's lock: see store). */
+const NEXT_SEQUENCE = `SET @next_sequence = (SELECT COALESCE(MAX(${name(shots.sequence)}), 0) + 1 FROM ${tableName(shots)} WHERE ${name(shots.sessionId)} = ?)`;
+
+/**
+ * The INSERT of a shot whose sequence is the given one or, when that is null, @next_sequence; it
+ * inserts nothing when the session is deleted, or closed and the user may not edit closed ones.
+ */
+function insertShotStatement(values: Omit<typeof shots.$inferInsert, 'sequence'> & { sequence: number | null }, mayEditClosed: boolean): raw.Statement {
+	const { keys, names, params } = raw.insertColumns(shots, values as typeof shots.$inferInsert);
+	const placeholders = keys.map((key) => (key === 'sequence' ? 'COALESCE(?, @next_sequence)' : '?'));
+	return {
+		sql:
+			`INSERT INTO ${tableName(shots)} (${names.join(', ')}) SELECT ${placeholders.join(', ')} FROM ${tableName(rangeSessions)} s ` +
+			`WHERE ${name(rangeSessions.id, 's')} = ? AND ${name(rangeSessions.deletedAt, 's')} IS NULL AND (${name(rangeSessions.status, 's')} <> 'closed' OR ?)`,
+		values: [...params, values.sessionId, mayEditClosed]
+	};
+}
 
 /**
  * Record a shot and compare it with the model; the stored shot with its prediction is returned.
  * A resend of the same clientUuid returns the stored shot (created: false) and changes nothing.
  * Without a sequence the server assigns the next free one.
  *
- * Two short transactions: the first holds the session row lock only while it assigns the
- * sequence and inserts (several tablets on one session queue on that lock, so it must be brief);
- * the second compares the new shot with the model (reconcile's predictStoredShot, which
- * share-locks the pair's calibrations so an approval running meanwhile cannot leave it stale).
+ * Two transactions, each sent as few batches (db/raw.ts):
+ * 1. The shot: the session row locked for update (several tablets on one session queue there,
+ *    which makes their sequence numbers distinct), the next sequence number read after the lock,
+ *    the INSERT and the COMMIT in one batch: the lock is held only while MariaDB runs it.
+ * 2. Its prediction: the rig, projectile, plan and calibrations read share-locked
+ *    (reconcile's predictionInputsRead), the prediction computed, and written only if the session
+ *    is unchanged since (1) and nobody wrote this shot's prediction meanwhile — otherwise it is
+ *    computed again from what is stored, under locks. READ COMMITTED, so that last check reads
+ *    the session without locking it (a lock there would make this wait on, or deadlock with, an
+ *    approval that holds the session).
  */
 export async function create(sessionId: number, input: ShotInput, user: AppUser): Promise<{ shot: ShotWithPrediction; created: boolean }> {
-	const result = await insert(sessionId, input, user);
-	if (!result.created) {
-		const stored = await getWithPrediction(result.shot.id);
-		if (!stored) throw new Error(`shot ${result.shot.id} vanished after it was stored`);
-		return { shot: stored, created: false };
+	let stored: { shot: Shot; session: RangeSession; sessionUpdatedAt: string } | { resentId: number };
+	try {
+		stored = await storeShot(sessionId, input, user);
+	} catch (err) {
+		if (isDuplicate(err, 'shots_session_sequence_unique'))
+			throw new SessionRuleError('sequence', `Sequence number ${input.sequence} is already taken in this session.`, 409);
+		// A resend of a stored shot, or two sends of one shot that raced (the first one won).
+		if (isDuplicate(err, 'shots_client_uuid_unique')) stored = { resentId: await resent(pool().pool, sessionId, input.clientUuid) };
+		else throw err;
 	}
-	// The stored rows are known without reading them back (raw.insertedRow).
-	return { shot: { ...result.shot, prediction: await predictNewShot(result.shot, result.session) }, created: true };
+	if ('resentId' in stored) {
+		const shot = await getWithPrediction(stored.resentId);
+		if (!shot) throw new Error(`shot ${stored.resentId} vanished after it was stored`);
+		return { shot, created: false };
+	}
+	const prediction = await predictStoredShot(stored.shot, stored.session, stored.sessionUpdatedAt);
+	return { shot: { ...stored.shot, prediction }, created: true };
 }
 
-async function predictNewShot(shot: Shot, session: RangeSession) {
+async function storeShot(sessionId: number, input: ShotInput, user: AppUser) {
+	// Every column with a default is given, so the stored row is known (raw.insertedRow) but for
+	// its id and, when the server assigns it, its sequence number.
+	const now = new Date();
+	const values = {
+		...input,
+		sessionId,
+		sequence: input.sequence ?? null,
+		firedAt: input.firedAt ?? now,
+		miss: input.miss ?? false,
+		enteredBy: user.id,
+		createdAt: now,
+		updatedAt: now
+	};
+	const result = await raw.transaction(async (connection, commit) => {
+		// The locking read first: the consistent read of the next sequence number behind it sees
+		// every shot committed by the lock's previous holder.
+		const [sessionRows, , inserted, nextRows] = (await raw.batch(connection, [
+			{ sql: `${SESSION_READ} FOR UPDATE`, values: [sessionId] },
+			{ sql: NEXT_SEQUENCE, values: [sessionId] },
+			insertShotStatement(values, hasRole(user.role, 'lead')),
+			{ sql: 'SELECT @next_sequence AS next_sequence' },
+			commit()
+		])) as [SessionRows, unknown, ResultSetHeader, { '': { next_sequence: number } }[]];
+		return { sessionRows, inserted, nextSequence: nextRows[0][''].next_sequence };
+	});
+	const session = sessionOf(result.sessionRows, sessionId);
+	if (result.inserted.affectedRows !== 1) {
+		// Nothing inserted: the session is closed to this user — unless this is a resend.
+		const [earlier] = await raw.query<{ id: number }>(pool().pool, SHOT_BY_UUID, [input.clientUuid]);
+		if (earlier) return { resentId: await resent(pool().pool, sessionId, input.clientUuid) };
+		assertWritable(session, user);
+		throw new Error(`shot of session ${sessionId} not inserted although the session is writable`);
+	}
+	const shot = raw.insertedRow(shots, { ...values, id: result.inserted.insertId, sequence: input.sequence ?? result.nextSequence });
+	return { shot, session, sessionUpdatedAt: String(result.sessionRows[0].s[raw.columnName(rangeSessions.updatedAt)]) };
+}
+
+/** The prediction of a shot just stored (see create), or null when the model code failed. */
+async function predictStoredShot(shot: Shot, session: RangeSession, sessionUpdatedAt: string): Promise<ShotPrediction | null> {
 	try {
-		return await raw.transaction((connection) => predictStoredShot(connection, shot, session));
+		const written = await raw.transaction(async (connection, commit) => {
+			const [, inputRows] = (await raw.batch(connection, [
+				{ sql: 'SET TRANSACTION ISOLATION LEVEL READ COMMITTED' },
+				predictionInputsRead(session)
+			])) as [unknown, PredictionInputRows];
+			const prediction = predictionOrNull(shot, session, inputRows);
+			if (!prediction) return null;
+			const [insert] = (await raw.batch(connection, [
+				insertPredictionIfSessionUnchanged(prediction, session.id, sessionUpdatedAt),
+				commit()
+			])) as [ResultSetHeader];
+			return insert.affectedRows === 1 ? prediction : null;
+		});
+		if (written) return written;
 	} catch (err) {
-		// The shot is stored either way; a failed prediction is recomputed by the next change to
-		// the session, rig or calibration, and the session's statistics count it as not predicted.
+		// Written meanwhile by an approval or an edit: computed again below, from what is stored.
+		if (!isDuplicate(err, 'PRIMARY')) console.error(`Prediction of shot ${shot.id} failed:`, err);
+	}
+	try {
+		// The session changed since the shot was stored (or a prediction was written meanwhile):
+		// compute it again from what is stored now, under the locks an edit or approval takes.
+		await db.transaction(async (tx) => {
+			const current = await lockForWrite(tx, session.id);
+			await tx.execute(raw.asDrizzle(predictionInputsRead(current)));
+			await recomputePredictions(tx, { shotIds: [shot.id] });
+		});
+		return (await getWithPrediction(shot.id))?.prediction ?? null;
+	} catch (err) {
+		// The shot is stored either way; its prediction is recomputed by the next change to the
+		// session, rig or calibration, and the session's statistics count it as not predicted.
 		console.error(`Prediction of shot ${shot.id} failed:`, err);
 		return null;
 	}
 }
 
-type Inserted = { shot: Shot; session: RangeSession; created: true } | { shot: { id: number }; created: false };
+type SessionRows = { s: Record<string, unknown> }[];
 
-async function insert(sessionId: number, input: ShotInput, user: AppUser): Promise<Inserted> {
+function sessionOf(rows: SessionRows, sessionId: number) {
+	const session = rows[0] ? raw.rowOf(rangeSessions, rows[0].s) : null;
+	if (!session || session.deletedAt) throw new SessionRuleError('sessionId', `No range session with id ${sessionId}.`, 404);
+	return session;
+}
+
+/**
+ * The new shot's prediction, or null when the model code fails unexpectedly (the model's own
+ * refusals, e.g. a shot that stays in the barrel, are a prediction with its error set).
+ */
+function predictionOrNull(shot: Shot, session: RangeSession, inputRows: PredictionInputRows) {
 	try {
-		return await raw.transaction(async (connection): Promise<Inserted> => {
-			// The locking read runs first: the consistent read queued behind it then sees every shot
-			// committed by the previous holder of the lock.
-			const [[sessionRaw], [found]] = await Promise.all([
-				raw.query(connection, SESSION_FOR_UPDATE, [sessionId]),
-				raw.query<{ last_sequence: number | null; uuid_session_id: number | null }>(connection, LAST_SEQUENCE_AND_UUID, [
-					sessionId,
-					input.clientUuid
-				])
-			]);
-			const session = sessionRaw ? raw.rowOf(rangeSessions, sessionRaw) : null;
-			if (!session || session.deletedAt) throw new SessionRuleError('sessionId', `No range session with id ${sessionId}.`, 404);
-			if (found.uuid_session_id !== null) return resent(connection, sessionId, input.clientUuid);
-			assertWritable(session, user);
-			// Every column with a default is given, so the stored row is known (raw.insertedRow).
-			const now = new Date();
-			const values = {
-				...input,
-				sessionId,
-				sequence: input.sequence ?? (found.last_sequence ?? 0) + 1,
-				firedAt: input.firedAt ?? now,
-				miss: input.miss ?? false,
-				enteredBy: user.id,
-				createdAt: now,
-				updatedAt: now
-			};
-			const statement = raw.insertStatement(shots, values);
-			const { insertId } = await raw.execute(connection, statement.sql, statement.values);
-			return { shot: raw.insertedRow(shots, { ...values, id: insertId }), session, created: true };
-		});
+		return predictNewShot(shot, session, predictionInputs(inputRows, session));
 	} catch (err) {
-		if (isDuplicate(err, 'shots_session_sequence_unique'))
-			throw new SessionRuleError('sequence', `Sequence number ${input.sequence} is already taken in this session.`, 409);
-		// Two sends of one shot raced; the first one won. Answer like a resend.
-		if (isDuplicate(err, 'shots_client_uuid_unique')) return resent(pool().pool, sessionId, input.clientUuid);
-		throw err;
+		console.error(`Prediction of a shot of session ${session.id} failed:`, err);
+		return null;
 	}
 }
 
-/** The stored shot of a resent clientUuid; 409 when the UUID belongs to another session's shot. */
-async function resent(connection: raw.Queryable, sessionId: number, clientUuid: string): Promise<Inserted> {
-	const [row] = await raw.query(connection, SHOT_BY_UUID, [clientUuid]);
-	const shot = row ? raw.rowOf(shots, row) : null;
-	if (!shot) throw new Error(`the shot with clientUuid ${clientUuid} was reported stored but is not`);
-	if (shot.sessionId !== sessionId)
+/** The id of the stored shot of a resent clientUuid; 409 when the UUID belongs to another session's shot. */
+async function resent(connection: raw.Queryable, sessionId: number, clientUuid: string): Promise<number> {
+	const [row] = await raw.query<{ id: number; session_id: number }>(connection, SHOT_BY_UUID, [clientUuid]);
+	if (!row) throw new Error(`the shot with clientUuid ${clientUuid} was reported stored but is not`);
+	if (row.session_id !== sessionId)
 		throw new SessionRuleError('clientUuid', 'This clientUuid belongs to a shot of another session.', 409);
-	return { shot: { id: shot.id }, created: false };
+	return row.id;
 }
 
 export async function get(shotId: number) {

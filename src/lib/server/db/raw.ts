@@ -7,14 +7,22 @@
 // conversions still come from the Drizzle tables (getTableColumns, the columns' own
 // mapFromDriverValue/mapToDriverValue), so they cannot drift from schema.ts.
 //
-// It runs on mysql2's callback API, on the same pool as Drizzle: the promise wrapper captures a
-// stack trace for every statement, which was a measurable share of the same benchmark. Statements
-// with values are server-side prepared statements (mysql2's execute: prepared once per pooled
-// connection and cached there, then sent as binary values): MariaDB parses each text once.
-import { getTableColumns, getTableName, type Column, type InferInsertModel, type InferSelectModel, type Table } from 'drizzle-orm';
+// It runs on mysql2's callback API: the promise wrapper captures a stack trace for every
+// statement, which was a measurable share of the same benchmark. Single statements with values
+// are server-side prepared statements (mysql2's execute: prepared once per pooled connection and
+// cached there, then sent as binary values): MariaDB parses each text once.
+//
+// Transactions run on a pool of their own (client.ts: autocommit off, several statements per
+// request) and send their statements in batches: one write, run by MariaDB one after the other,
+// answered together. A row lock taken by a batch's first statement is then held while MariaDB
+// runs the rest, not while the app's busy event loop gets round to sending each next statement
+// (measured: 20 tablets on one session queued on its row lock, whose holder sat idle between
+// statements). Batches use the text protocol, values escaped by mysql2 as in any query; their
+// statement texts are constants of the modules that use them, never built from input.
+import { getTableColumns, getTableName, sql, type Column, type InferInsertModel, type InferSelectModel, type SQL, type Table } from 'drizzle-orm';
 import { toSnakeCase } from 'drizzle-orm/casing';
 import type { Pool as CorePool, PoolConnection as CorePoolConnection, QueryOptions, ResultSetHeader } from 'mysql2';
-import { pool } from './index';
+import { transactionPool } from './index';
 
 /** A pooled connection (inside a transaction) or the pool itself (one statement, autocommit). */
 export type Queryable = Pick<CorePoolConnection, 'query' | 'execute'> | Pick<CorePool, 'query' | 'execute'>;
@@ -58,6 +66,36 @@ export function execute(on: Queryable, sqlText: string, values: unknown[] = []):
 	return run<ResultSetHeader>(on, { sql: sqlText, values });
 }
 
+/** One statement of a batch: constant text with `?` placeholders, and its values. */
+export type Statement = { sql: string; values?: unknown[] };
+
+/** A statement as Drizzle SQL, to run it in a Drizzle transaction (its text has no `?` but its placeholders). */
+export function asDrizzle(statement: Statement): SQL {
+	const parts = statement.sql.split('?');
+	const values = statement.values ?? [];
+	if (parts.length - 1 !== values.length) throw new Error(`asDrizzle: ${parts.length - 1} placeholders, ${values.length} values`);
+	return sql.join(parts.flatMap((part, i) => (i < values.length ? [sql.raw(part), sql`${values[i]}`] : [sql.raw(part)])));
+}
+
+/**
+ * Several statements in one write on a transaction's connection (transaction() below), run in
+ * order; one result per statement (rows, nested by table alias — "" for computed columns — or a
+ * write result). MariaDB stops at the first failing statement, and the whole batch fails.
+ */
+export function batch(connection: Connection, statements: Statement[]): Promise<unknown[]> {
+	const options: QueryOptions = {
+		sql: statements.map((s) => s.sql).join(';\n'),
+		values: statements.flatMap((s) => s.values ?? []),
+		typeCast,
+		nestTables: true
+	};
+	return new Promise((resolve, reject) =>
+		connection.query(options, (err: Error | null, result: unknown) =>
+			err ? reject(err) : resolve(statements.length === 1 ? [result] : (result as unknown[]))
+		)
+	);
+}
+
 /** `table` as a quoted identifier. */
 export function tableName(table: Table): string {
 	return `\`${getTableName(table)}\``;
@@ -96,17 +134,25 @@ export function rowOf<T extends Table>(table: T, raw: Record<string, unknown>): 
 	return out as InferSelectModel<T>;
 }
 
-/** An INSERT of one row: the columns given (undefined ones left to their defaults), converted by the columns. */
-export function insertStatement<T extends Table>(table: T, values: InferInsertModel<T>): { sql: string; values: unknown[] } {
+/** The columns given in `values` (undefined ones left out), their property keys and their values converted by the columns. */
+export function insertColumns<T extends Table>(table: T, values: InferInsertModel<T>): { keys: string[]; names: string[]; params: unknown[] } {
+	const keys: string[] = [];
 	const names: string[] = [];
 	const params: unknown[] = [];
 	const given = values as Record<string, unknown>;
 	for (const [key, column, dbName] of layoutOf(table)) {
 		const value = given[key];
 		if (value === undefined) continue;
+		keys.push(key);
 		names.push(`\`${dbName}\``);
 		params.push(value === null ? null : column.mapToDriverValue(value));
 	}
+	return { keys, names, params };
+}
+
+/** An INSERT of one row: the columns given (undefined ones left to their defaults), converted by the columns. */
+export function insertStatement<T extends Table>(table: T, values: InferInsertModel<T>): Statement {
+	const { names, params } = insertColumns(table, values);
 	return {
 		sql: `INSERT INTO ${tableName(table)} (${names.join(', ')}) VALUES (${names.map(() => '?').join(', ')})`,
 		values: params
@@ -132,34 +178,49 @@ export function insertedRow<T extends Table>(table: T, values: InferInsertModel<
 }
 
 function connect(): Promise<Connection> {
-	return new Promise((resolve, reject) => pool().pool.getConnection((err, connection) => (err ? reject(err) : resolve(connection))));
+	return new Promise((resolve, reject) =>
+		transactionPool().pool.getConnection((err, connection) => (err ? reject(err) : resolve(connection)))
+	);
 }
 
+/** The COMMIT a transaction's work may send as the last statement of its last batch. */
+export type Commit = () => Statement;
+
 /**
- * Run `work` in a transaction on one pooled connection: committed when it returns, rolled back
- * when it throws (and the error passed on); the connection goes back to the pool either way.
- * START TRANSACTION is queued, not awaited: `work`'s first statement follows it on the wire.
+ * Run `work` in a transaction on a connection of the transaction pool: committed when it
+ * returns, rolled back when it throws (and the error passed on); the connection goes back to the
+ * pool either way. The connections have autocommit off (client.ts), so `work`'s first statement
+ * opens the transaction: no START TRANSACTION round trip.
+ *
+ * `work` may end its last batch with `commit()`, so the locks go with that batch's answer rather
+ * than a round trip later. Only where a failure of any statement before it leaves nothing written
+ * that should not be committed: MariaDB stops at the failing statement, the COMMIT is not run, and
+ * the transaction is rolled back here.
  */
-export async function transaction<T>(work: (connection: Connection) => Promise<T>): Promise<T> {
+export async function transaction<T>(work: (connection: Connection, commit: Commit) => Promise<T>): Promise<T> {
 	const connection = await connect();
 	// A connection whose ROLLBACK or COMMIT failed is in an unknown state: closed, not pooled.
 	let usable = true;
+	let committedByWork = false;
+	const commit: Commit = () => {
+		committedByWork = true;
+		return { sql: 'COMMIT' };
+	};
 	try {
-		const begun = execute(connection, 'START TRANSACTION');
 		let result: T;
 		try {
-			const [, value] = await Promise.all([begun, work(connection)]);
-			result = value;
+			result = await work(connection, commit);
 		} catch (err) {
-			await begun.catch(() => undefined);
-			await execute(connection, 'ROLLBACK').catch(() => (usable = false));
+			await batch(connection, [{ sql: 'ROLLBACK' }]).catch(() => (usable = false));
 			throw err;
 		}
-		try {
-			await execute(connection, 'COMMIT');
-		} catch (err) {
-			usable = false;
-			throw err;
+		if (!committedByWork) {
+			try {
+				await batch(connection, [{ sql: 'COMMIT' }]);
+			} catch (err) {
+				usable = false;
+				throw err;
+			}
 		}
 		return result;
 	} finally {

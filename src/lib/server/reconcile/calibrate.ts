@@ -452,8 +452,13 @@ export async function approveCalibration(
 		.limit(1);
 	if (!target) throw new ReconcileError('calibrationId', `No calibration with id ${calibrationId}.`, 404);
 	return tx.transaction(async (inner) => {
-		// Lock every calibration of the pair, in id order: two approvals for one pair then run one
-		// after the other and cannot deadlock.
+		// Lock the pair's sessions first, then every calibration of the pair, both in id order —
+		// the order a shot being logged takes them in (its session for update, then the pair's
+		// calibrations shared, shots.ts): a shot logged meanwhile either finishes first (and this
+		// recomputation, reading after the locks, includes it) or waits and reads the new
+		// calibration once this commits. Never a prediction under the old calibration written after
+		// this recomputation; never a deadlock between the two, nor between two approvals.
+		const sessionIds = await sessionIdsOfPair(inner, target.rigId, target.projectileId, { lock: true });
 		const pair = await inner
 			.select()
 			.from(calibrations)
@@ -478,10 +483,6 @@ export async function approveCalibration(
 			.set({ status: 'approved', approvedBy: user.id, approvedAt: now })
 			.where(eq(calibrations.id, calibrationId));
 
-		// Lock the pair's sessions too: a shot logged meanwhile (shots lock their session first) then
-		// waits, and reads the new calibration once this commits, instead of writing a prediction
-		// under the old one after this recomputation has run.
-		const sessionIds = await sessionIdsOfPair(inner, target.rigId, target.projectileId, { lock: true });
 		const recomputed = await recomputePredictions(inner, { sessionIds });
 
 		const [calibration] = await inner.select().from(calibrations).where(eq(calibrations.id, calibrationId));

@@ -14,8 +14,9 @@
 //   basis), in pages. Call it in the transaction of every change a prediction depends on: a shot
 //   logged, imported or edited; a session's geometry, conditions or plan; a rig's nominal η or a
 //   projectile's nominal C_D (by rigId / projectileId) — approval does its own.
-// - predictStoredShot(connection, shot, session): the same for one shot just logged, on a raw
-//   connection in its own transaction (the fast path behind POST …/shots; db/raw.ts).
+// - predictionInputsRead / predictionInputs / predictNewShot / insertPredictionIfSessionUnchanged: the same for one shot
+//   being logged, inside the transaction that stores it (the fast path behind POST …/shots,
+//   shots.ts; db/raw.ts).
 // - judgeSpeed / judgeImpact: the pass/fail rules on their own (for live previews and tests).
 //
 // Calibrations
@@ -48,9 +49,15 @@ export {
 	judgeImpact,
 	judgeSpeed,
 	PREDICTION_PAGE_SIZE,
-	predictStoredShot,
+	insertPredictionIfSessionUnchanged,
+	predictionInputsRead,
+	predictionInputs,
+	predictNewShot,
 	recomputePredictions,
+	type PredictionInputRows,
 	type PredictedShot,
+	type PredictionInputs,
+	type ShotPrediction,
 	type RecomputeResult,
 	type RecomputeSelection,
 	type SpeedJudgement

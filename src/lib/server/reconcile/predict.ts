@@ -11,7 +11,7 @@ import mysql from 'mysql2';
 import { PhysicsInputError } from '$lib/physics/errors';
 import { predictShot, type ShotPredictionResult, type ShotSetup } from '$lib/physics/fit/launcher';
 import { calibrations, projectiles, rangeSessions, rigs, shotPredictions, shots, testPlans, type SpeedBasis } from '../db/schema';
-import { columnName, execute, insertedRow, name, query, rowOf, selectList, tableName, type Connection } from '../db/raw';
+import { columnName, insertedRow, name, rowOf, selectList, tableName, type Statement } from '../db/raw';
 import {
 	calibrationsInForce,
 	ConditionsCache,
@@ -261,9 +261,8 @@ function upsertStatement(rows: PredictionRow[], computedAt: Date): string {
 	return UPSERT_HEAD + values + UPSERT_TAIL;
 }
 
-/** The one-row upsert with placeholders (a prepared statement: db/raw.ts) and its values. */
-const UPSERT_ONE = UPSERT_HEAD + '(' + WRITTEN_NAMES.map(() => '?').join(', ') + ')' + UPSERT_TAIL;
-function upsertOneValues(row: PredictionRow, computedAt: Date): unknown[] {
+/** One row's values in WRITTEN_NAMES order, for a statement with placeholders (db/raw.ts). */
+function rowValues(row: PredictionRow, computedAt: Date): unknown[] {
 	const value = (v: unknown) => (v === undefined || (typeof v === 'number' && !Number.isFinite(v)) ? null : v);
 	return [...WRITTEN_COLUMNS.map((key) => value(row[key])), timeText(computedAt)];
 }
@@ -423,48 +422,80 @@ export async function sessionIdsOfPair(
 	return rows.map((r) => r.id);
 }
 
-// The pair's calibrations, share-locked (see predictStoredShot), and the rig, projectile and plan
-// of a session in one join. Written once as text (db/raw.ts says why).
-const PAIR_CALIBRATIONS_LOCKED =
-	`SELECT ${selectList(calibrations)} FROM ${tableName(calibrations)} ` +
-	`WHERE ${name(calibrations.rigId)} = ? AND ${name(calibrations.projectileId)} = ? LOCK IN SHARE MODE`;
-const SESSION_REFERENCES =
-	`SELECT ${selectList(rigs, 'r')}, ${selectList(projectiles, 'p')}, ${selectList(testPlans, 'tp')} ` +
+// What one shot's prediction reads besides the shot and its session, in one statement that
+// share-locks it (see predictionInputsRead): the rig, the projectile, the plan (when the session
+// has one) and every calibration of the pair, a row per calibration. Written once as text
+// (db/raw.ts).
+const PREDICTION_INPUTS_LOCKED =
+	`SELECT ${selectList(rigs, 'r')}, ${selectList(projectiles, 'p')}, ${selectList(testPlans, 'tp')}, ${selectList(calibrations, 'c')} ` +
 	`FROM ${tableName(rigs)} r JOIN ${tableName(projectiles)} p ON ${name(projectiles.id, 'p')} = ? ` +
 	`LEFT JOIN ${tableName(testPlans)} tp ON ${name(testPlans.id, 'tp')} = ? ` +
-	`WHERE ${name(rigs.id, 'r')} = ?`;
+	`LEFT JOIN ${tableName(calibrations)} c ON ${name(calibrations.rigId, 'c')} = ${name(rigs.id, 'r')} AND ${name(calibrations.projectileId, 'c')} = ${name(projectiles.id, 'p')} ` +
+	`WHERE ${name(rigs.id, 'r')} = ? LOCK IN SHARE MODE`;
 
 /**
- * The prediction of one shot just stored, written in the caller's transaction: the fast path
- * behind logging a shot (recomputePredictions does the same for any number of shots).
- *
- * It share-locks the pair's calibrations first, which an approval locks for update while it
- * recomputes every shot of the pair: so this prediction either waits for the approval (and then
- * uses the new calibration) or the approval waits for it (and then recomputes this shot too).
- * Never a stale prediction written after an approval. MariaDB spells the shared lock LOCK IN
- * SHARE MODE (10.11 has no FOR SHARE).
+ * The statement reading the rig, projectile, plan and calibrations of a session, share-locked for
+ * the rest of the transaction: the read behind logging one shot (recomputePredictions does its
+ * own). An approval locks the pair's calibrations for update while it recomputes every shot of
+ * the pair, and an edit of the rig, projectile or plan locks that row while it recomputes their
+ * shots: so a prediction made from this read either is made before such a change (which then
+ * waits, and recomputes the shot too) or reads it. MariaDB spells the shared lock LOCK IN SHARE
+ * MODE (10.11 has no FOR SHARE).
  */
-export async function predictStoredShot(
-	connection: Connection,
-	shot: PredictedShot,
-	session: RangeSessionRow
-): Promise<typeof shotPredictions.$inferSelect> {
-	// The lock first; the plain read queued behind it sees what was committed before it.
-	const [pair, [refs]] = await Promise.all([
-		query(connection, PAIR_CALIBRATIONS_LOCKED, [session.rigId, session.projectileId]),
-		query<Record<string, Record<string, unknown>>>(connection, SESSION_REFERENCES, [session.projectileId, session.testPlanId, session.rigId], {
-			nestTables: true
-		})
-	]);
+export function predictionInputsRead(session: Pick<RangeSessionRow, 'rigId' | 'projectileId' | 'testPlanId'>): Statement {
+	return { sql: PREDICTION_INPUTS_LOCKED, values: [session.projectileId, session.testPlanId, session.rigId] };
+}
+
+/** What a shot's prediction needs besides the shot and its session. */
+export interface PredictionInputs {
+	inForce: CalibrationInForce;
+	plan: PlanRow | null;
+}
+
+/** Rows of predictionInputsRead's statement, nested by table alias (db/raw.ts's batch). */
+export type PredictionInputRows = Record<string, Record<string, unknown>>[];
+
+/** The inputs in the rows predictionInputsRead read. Throws ReconcileError(404) without a rig or projectile. */
+export function predictionInputs(rows: PredictionInputRows, session: RangeSessionRow): PredictionInputs {
+	const refs = rows[0];
+	const calibrationId = columnName(calibrations.id);
 	const inForce = inForceOf(
 		refs ? rowOf(rigs, refs.r) : undefined,
 		refs ? rowOf(projectiles, refs.p) : undefined,
-		pair.map((raw) => rowOf(calibrations, raw)),
+		rows.filter((r) => r.c[calibrationId] !== null).map((r) => rowOf(calibrations, r.c)),
 		session
 	);
 	const plan = refs && refs.tp[columnName(testPlans.id)] !== null ? rowOf(testPlans, refs.tp) : null;
-	const row = predictionRow(shot, session, plan, inForce, new ConditionsCache());
-	const computedAt = new Date();
-	await execute(connection, UPSERT_ONE, upsertOneValues(row, computedAt));
-	return insertedRow(shotPredictions, { ...row, computedAt });
+	return { inForce, plan };
+}
+
+export type ShotPrediction = typeof shotPredictions.$inferSelect;
+
+/** The prediction of a shot just stored, as its row in shot_predictions. */
+export function predictNewShot(shot: PredictedShot, session: RangeSessionRow, inputs: PredictionInputs, computedAt = new Date()): ShotPrediction {
+	return insertedRow(shotPredictions, {
+		...predictionRow(shot, session, inputs.plan, inputs.inForce, new ConditionsCache()),
+		computedAt
+	});
+}
+
+// The prediction of a shot just stored, written only while its session's row is as it was when
+// the shot was stored (its updated_at): a session edited since then has recomputed the shot's
+// prediction itself, or will. A plain INSERT: should an approval or an edit have written this
+// shot's prediction first, it fails on the key rather than overwrite theirs.
+const INSERT_PREDICTION_IF_SESSION_UNCHANGED =
+	`INSERT INTO ${tableName(shotPredictions)} (${WRITTEN_NAMES.map((n) => `\`${n}\``).join(', ')}) ` +
+	`SELECT ${WRITTEN_NAMES.map(() => '?').join(', ')} FROM ${tableName(rangeSessions)} s ` +
+	`WHERE ${name(rangeSessions.id, 's')} = ? AND ${name(rangeSessions.updatedAt, 's')} = ?`;
+
+/**
+ * The statement storing `prediction` for its shot if the session row still has the updated_at
+ * it had when the shot was stored (as MariaDB wrote it: DATETIME(3) text); it writes nothing
+ * otherwise, and fails with a duplicate key when the shot's prediction was written meanwhile.
+ */
+export function insertPredictionIfSessionUnchanged(prediction: ShotPrediction, sessionId: number, sessionUpdatedAt: string): Statement {
+	return {
+		sql: INSERT_PREDICTION_IF_SESSION_UNCHANGED,
+		values: [...rowValues(prediction, prediction.computedAt), sessionId, sessionUpdatedAt]
+	};
 }
