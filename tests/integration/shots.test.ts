@@ -208,6 +208,27 @@ describe('the prediction written after the shot', () => {
 		).rejects.toMatchObject({ code: 'ER_DUP_ENTRY' });
 	});
 
+	it('found stale, it is computed again from what is stored, under the locks, and stored', async () => {
+		const sessionId = await newSession();
+		const { shot: stored } = await shotsModule.create(sessionId, shot(), officer);
+		await scratch.db.delete(shotPredictions).where(eq(shotPredictions.shotId, stored.id));
+		// An analyst changes the session's conditions after the shot was stored (and its edit has
+		// not reached this shot): the prediction made from the old conditions must not be written.
+		await scratch.db.update(rangeSessions).set({ temperatureC: 30 }).where(eq(rangeSessions.id, sessionId));
+		const [session] = await scratch.db.select().from(rangeSessions).where(eq(rangeSessions.id, sessionId));
+		const oldConditions = { ...session, temperatureC: 10 };
+		const inputRows = await raw.transaction(async (connection, commit) => {
+			const [rows] = await raw.batch(connection, [reconcile.predictionInputsRead(sessionId), commit()]);
+			return rows as import('../../src/lib/server/reconcile').PredictionInputRows;
+		});
+		const written = await shotsModule.testing.predictStoredShot(stored, oldConditions, '2000-01-01 00:00:00.000', inputRows);
+
+		await scratch.db.transaction((tx) => reconcile.recomputePredictions(tx, { shotIds: [stored.id] }));
+		const [fresh] = await scratch.db.select().from(shotPredictions).where(eq(shotPredictions.shotId, stored.id));
+		expect(predicted(written)).toEqual(predicted(fresh));
+		expect(written?.predictedTargetMps).not.toBe(stored.prediction?.predictedTargetMps);
+	});
+
 	it('an approval racing with 30 shots being logged leaves every shot predicted under the approved calibration', async () => {
 		const sessionId = await newSession();
 		await shotsModule.create(sessionId, shot(), officer);

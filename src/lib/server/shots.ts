@@ -59,19 +59,21 @@ function insertShotStatement(values: Omit<typeof shots.$inferInsert, 'sequence'>
  * A resend of the same clientUuid returns the stored shot (created: false) and changes nothing.
  * Without a sequence the server assigns the next free one.
  *
- * Two transactions, each sent as few batches (db/raw.ts):
+ * Two transactions of one batch each (db/raw.ts):
  * 1. The shot: the session row locked for update (several tablets on one session queue there,
  *    which makes their sequence numbers distinct), the next sequence number read after the lock,
- *    the INSERT and the COMMIT in one batch: the lock is held only while MariaDB runs it.
- * 2. Its prediction: the rig, projectile, plan and calibrations read share-locked
- *    (reconcile's predictionInputsRead), the prediction computed, and written only if the session
- *    is unchanged since (1) and nobody wrote this shot's prediction meanwhile — otherwise it is
- *    computed again from what is stored, under locks. READ COMMITTED, so that last check reads
- *    the session without locking it (a lock there would make this wait on, or deadlock with, an
- *    approval that holds the session).
+ *    the INSERT, then what the prediction needs, share-locked (reconcile's predictionInputsRead:
+ *    a rig, plan or calibration change either committed before and is read, or waits, and its
+ *    recomputation then sees this shot), and the COMMIT: the session lock is held only while
+ *    MariaDB runs that batch.
+ * 2. Its prediction, computed in between, written only if the session row is unchanged since (1)
+ *    — a session edit recomputes the shot itself — and with a plain INSERT that fails rather than
+ *    overwrite a prediction an approval or edit wrote meanwhile. Either way it is then computed
+ *    again from what is stored, under the locks an edit takes.
+ * The locks come in the order an approval takes them (sessions, then calibrations): no deadlock.
  */
 export async function create(sessionId: number, input: ShotInput, user: AppUser): Promise<{ shot: ShotWithPrediction; created: boolean }> {
-	let stored: { shot: Shot; session: RangeSession; sessionUpdatedAt: string } | { resentId: number };
+	let stored: Stored;
 	try {
 		stored = await storeShot(sessionId, input, user);
 	} catch (err) {
@@ -86,11 +88,15 @@ export async function create(sessionId: number, input: ShotInput, user: AppUser)
 		if (!shot) throw new Error(`shot ${stored.resentId} vanished after it was stored`);
 		return { shot, created: false };
 	}
-	const prediction = await predictStoredShot(stored.shot, stored.session, stored.sessionUpdatedAt);
+	const prediction = await predictStoredShot(stored.shot, stored.session, stored.sessionUpdatedAt, stored.inputRows);
 	return { shot: { ...stored.shot, prediction }, created: true };
 }
 
-async function storeShot(sessionId: number, input: ShotInput, user: AppUser) {
+type Stored =
+	| { shot: Shot; session: RangeSession; sessionUpdatedAt: string; inputRows: PredictionInputRows }
+	| { resentId: number };
+
+async function storeShot(sessionId: number, input: ShotInput, user: AppUser): Promise<Stored> {
 	// Every column with a default is given, so the stored row is known (raw.insertedRow) but for
 	// its id and, when the server assigns it, its sequence number.
 	const now = new Date();
@@ -107,14 +113,15 @@ async function storeShot(sessionId: number, input: ShotInput, user: AppUser) {
 	const result = await raw.transaction(async (connection, commit) => {
 		// The locking read first: the consistent read of the next sequence number behind it sees
 		// every shot committed by the lock's previous holder.
-		const [sessionRows, , inserted, nextRows] = (await raw.batch(connection, [
+		const [sessionRows, , inserted, nextRows, inputRows] = (await raw.batch(connection, [
 			{ sql: `${SESSION_READ} FOR UPDATE`, values: [sessionId] },
 			{ sql: NEXT_SEQUENCE, values: [sessionId] },
 			insertShotStatement(values, hasRole(user.role, 'lead')),
 			{ sql: 'SELECT @next_sequence AS next_sequence' },
+			predictionInputsRead(sessionId),
 			commit()
-		])) as [SessionRows, unknown, ResultSetHeader, { '': { next_sequence: number } }[]];
-		return { sessionRows, inserted, nextSequence: nextRows[0][''].next_sequence };
+		])) as [SessionRows, unknown, ResultSetHeader, { '': { next_sequence: number } }[], PredictionInputRows];
+		return { sessionRows, inserted, nextSequence: nextRows[0][''].next_sequence, inputRows };
 	});
 	const session = sessionOf(result.sessionRows, sessionId);
 	if (result.inserted.affectedRows !== 1) {
@@ -125,36 +132,36 @@ async function storeShot(sessionId: number, input: ShotInput, user: AppUser) {
 		throw new Error(`shot of session ${sessionId} not inserted although the session is writable`);
 	}
 	const shot = raw.insertedRow(shots, { ...values, id: result.inserted.insertId, sequence: input.sequence ?? result.nextSequence });
-	return { shot, session, sessionUpdatedAt: String(result.sessionRows[0].s[raw.columnName(rangeSessions.updatedAt)]) };
+	const sessionUpdatedAt = String(result.sessionRows[0].s[raw.columnName(rangeSessions.updatedAt)]);
+	return { shot, session, sessionUpdatedAt, inputRows: result.inputRows };
 }
 
 /** The prediction of a shot just stored (see create), or null when the model code failed. */
-async function predictStoredShot(shot: Shot, session: RangeSession, sessionUpdatedAt: string): Promise<ShotPrediction | null> {
+async function predictStoredShot(
+	shot: Shot,
+	session: RangeSession,
+	sessionUpdatedAt: string,
+	inputRows: PredictionInputRows
+): Promise<ShotPrediction | null> {
+	const prediction = predictionOrNull(shot, session, inputRows);
 	try {
-		const written = await raw.transaction(async (connection, commit) => {
-			const [, inputRows] = (await raw.batch(connection, [
-				{ sql: 'SET TRANSACTION ISOLATION LEVEL READ COMMITTED' },
-				predictionInputsRead(session)
-			])) as [unknown, PredictionInputRows];
-			const prediction = predictionOrNull(shot, session, inputRows);
-			if (!prediction) return null;
-			const [insert] = (await raw.batch(connection, [
-				insertPredictionIfSessionUnchanged(prediction, session.id, sessionUpdatedAt),
-				commit()
-			])) as [ResultSetHeader];
-			return insert.affectedRows === 1 ? prediction : null;
-		});
-		if (written) return written;
+		if (prediction) {
+			const [insert] = (await raw.transaction((connection, commit) =>
+				raw.batch(connection, [insertPredictionIfSessionUnchanged(prediction, session.id, sessionUpdatedAt), commit()])
+			)) as [ResultSetHeader];
+			if (insert.affectedRows === 1) return prediction;
+		}
 	} catch (err) {
 		// Written meanwhile by an approval or an edit: computed again below, from what is stored.
 		if (!isDuplicate(err, 'PRIMARY')) console.error(`Prediction of shot ${shot.id} failed:`, err);
 	}
 	try {
-		// The session changed since the shot was stored (or a prediction was written meanwhile):
-		// compute it again from what is stored now, under the locks an edit or approval takes.
+		// The session changed since the shot was stored (or a prediction was written meanwhile, or
+		// the model code failed): compute it again from what is stored now, under the locks an
+		// edit or approval takes, in their order.
 		await db.transaction(async (tx) => {
-			const current = await lockForWrite(tx, session.id);
-			await tx.execute(raw.asDrizzle(predictionInputsRead(current)));
+			await lockForWrite(tx, session.id);
+			await tx.execute(raw.asDrizzle(predictionInputsRead(session.id)));
 			await recomputePredictions(tx, { shotIds: [shot.id] });
 		});
 		return (await getWithPrediction(shot.id))?.prediction ?? null;
@@ -302,3 +309,6 @@ export async function byIds(ids: number[]) {
 	if (ids.length === 0) return [];
 	return db.select().from(shots).where(inArray(shots.id, ids));
 }
+
+/** Internals reached by the integration tests (the fallback of a prediction found stale). */
+export const testing = { predictStoredShot };

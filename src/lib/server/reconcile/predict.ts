@@ -424,26 +424,32 @@ export async function sessionIdsOfPair(
 
 // What one shot's prediction reads besides the shot and its session, in one statement that
 // share-locks it (see predictionInputsRead): the rig, the projectile, the plan (when the session
-// has one) and every calibration of the pair, a row per calibration. Written once as text
-// (db/raw.ts).
+// has one) and the pair's approved calibration (a row per approved calibration: one, or none),
+// found through the session. Under REPEATABLE READ the lock on that index range also holds the
+// gap where an approval would put a newly approved row. Written once as text (db/raw.ts).
 const PREDICTION_INPUTS_LOCKED =
 	`SELECT ${selectList(rigs, 'r')}, ${selectList(projectiles, 'p')}, ${selectList(testPlans, 'tp')}, ${selectList(calibrations, 'c')} ` +
-	`FROM ${tableName(rigs)} r JOIN ${tableName(projectiles)} p ON ${name(projectiles.id, 'p')} = ? ` +
-	`LEFT JOIN ${tableName(testPlans)} tp ON ${name(testPlans.id, 'tp')} = ? ` +
-	`LEFT JOIN ${tableName(calibrations)} c ON ${name(calibrations.rigId, 'c')} = ${name(rigs.id, 'r')} AND ${name(calibrations.projectileId, 'c')} = ${name(projectiles.id, 'p')} ` +
-	`WHERE ${name(rigs.id, 'r')} = ? LOCK IN SHARE MODE`;
+	`FROM ${tableName(rangeSessions)} s ` +
+	`JOIN ${tableName(rigs)} r ON ${name(rigs.id, 'r')} = ${name(rangeSessions.rigId, 's')} ` +
+	`JOIN ${tableName(projectiles)} p ON ${name(projectiles.id, 'p')} = ${name(rangeSessions.projectileId, 's')} ` +
+	`LEFT JOIN ${tableName(testPlans)} tp ON ${name(testPlans.id, 'tp')} = ${name(rangeSessions.testPlanId, 's')} ` +
+	`LEFT JOIN ${tableName(calibrations)} c ON ${name(calibrations.rigId, 'c')} = ${name(rangeSessions.rigId, 's')} AND ${name(calibrations.projectileId, 'c')} = ${name(rangeSessions.projectileId, 's')} ` +
+	`AND ${name(calibrations.status, 'c')} = 'approved' ` +
+	`WHERE ${name(rangeSessions.id, 's')} = ? LOCK IN SHARE MODE`;
 
 /**
  * The statement reading the rig, projectile, plan and calibrations of a session, share-locked for
  * the rest of the transaction: the read behind logging one shot (recomputePredictions does its
- * own). An approval locks the pair's calibrations for update while it recomputes every shot of
- * the pair, and an edit of the rig, projectile or plan locks that row while it recomputes their
- * shots: so a prediction made from this read either is made before such a change (which then
- * waits, and recomputes the shot too) or reads it. MariaDB spells the shared lock LOCK IN SHARE
- * MODE (10.11 has no FOR SHARE).
+ * own). The caller holds the session row for update (the share lock on it is then its own).
+ *
+ * An approval locks the pair's sessions and calibrations for update while it recomputes every
+ * shot of the pair, and an edit of the rig, projectile or plan locks that row while it recomputes
+ * their shots: so such a change either committed before this read (and shows in it) or waits for
+ * the caller's transaction, and its recomputation then sees the caller's shot. MariaDB spells the
+ * shared lock LOCK IN SHARE MODE (10.11 has no FOR SHARE).
  */
-export function predictionInputsRead(session: Pick<RangeSessionRow, 'rigId' | 'projectileId' | 'testPlanId'>): Statement {
-	return { sql: PREDICTION_INPUTS_LOCKED, values: [session.projectileId, session.testPlanId, session.rigId] };
+export function predictionInputsRead(sessionId: number): Statement {
+	return { sql: PREDICTION_INPUTS_LOCKED, values: [sessionId] };
 }
 
 /** What a shot's prediction needs besides the shot and its session. */
