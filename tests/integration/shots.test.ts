@@ -60,11 +60,21 @@ function shot(over: Record<string, unknown> = {}) {
 	};
 }
 
-/** The prediction columns a recomputation writes (not its time). */
+/**
+ * Numbers to 13 significant digits: MariaDB's text protocol (Drizzle's reads) renders some
+ * doubles 1 ulp off what was stored (measured here: 36 of 2 000 random values; the binary
+ * protocol is exact), so a value computed from JavaScript's own numbers and one computed from
+ * numbers read back may differ in the last bit.
+ */
+function digits<T>(value: T): T {
+	return JSON.parse(JSON.stringify(value, (_key, v) => (typeof v === 'number' ? Number(v.toPrecision(13)) : v)));
+}
+
+/** The prediction columns a recomputation writes (not its time), to 13 digits. */
 function predicted(row: typeof shotPredictions.$inferSelect | null) {
 	if (!row) return null;
 	const { computedAt: _time, ...rest } = row;
-	return rest;
+	return digits(rest);
 }
 
 beforeAll(async () => {
@@ -113,7 +123,7 @@ describe('logging a shot', () => {
 		expect(answered.sequence).toBe(1);
 		expect(answered.prediction?.predictedMuzzleMps).toBeGreaterThan(50);
 		// What a later read returns (the row as MariaDB stored it) is what the POST answered.
-		expect(await shotsModule.getWithPrediction(answered.id)).toEqual(answered);
+		expect(digits(await shotsModule.getWithPrediction(answered.id))).toEqual(digits(answered));
 		// And recomputePredictions, the path every edit and import takes, writes the same prediction.
 		await scratch.db.transaction((tx) => reconcile.recomputePredictions(tx, { shotIds: [answered.id] }));
 		const [again] = await scratch.db.select().from(shotPredictions).where(eq(shotPredictions.shotId, answered.id));
@@ -126,8 +136,54 @@ describe('logging a shot', () => {
 		expect(results.map((r) => r.shot.sequence).sort((a, b) => a - b)).toEqual(Array.from({ length: 40 }, (_, i) => i + 1));
 		const stored = await scratch.db.select().from(shots).where(eq(shots.sessionId, sessionId));
 		expect(stored).toHaveLength(40);
-		const predictions = await Promise.all(stored.map((s) => shotsModule.getWithPrediction(s.id)));
-		expect(predictions.every((p) => p?.prediction !== null)).toBe(true);
+		// Most were predicted ahead from the session's last inputs: each is what the general path makes.
+		const answered = new Map(results.map((r) => [r.shot.id, predicted(r.shot.prediction)]));
+		await scratch.db.transaction((tx) => reconcile.recomputePredictions(tx, { sessionIds: [sessionId] }));
+		const fresh = await scratch.db.select().from(shotPredictions);
+		for (const row of fresh.filter((p) => answered.has(p.shotId))) expect(answered.get(row.shotId)).toEqual(predicted(row));
+		expect(fresh.filter((p) => answered.has(p.shotId))).toHaveLength(40);
+	});
+
+	it('predicts the next shot from the rig, plan and calibration as changed between two shots, not as last seen', async () => {
+		const sessionId = await newSession();
+		const first = await shotsModule.create(sessionId, shot(), officer);
+		const same = await shotsModule.create(sessionId, shot(), officer);
+		expect(same.shot.prediction?.predictedMuzzleMps).toBeCloseTo(first.shot.prediction!.predictedMuzzleMps!, 12);
+
+		const check = async (label: string) => {
+			const { shot: next } = await shotsModule.create(sessionId, shot(), officer);
+			await scratch.db.transaction((tx) => reconcile.recomputePredictions(tx, { shotIds: [next.id] }));
+			const [fresh] = await scratch.db.select().from(shotPredictions).where(eq(shotPredictions.shotId, next.id));
+			expect(predicted(next.prediction), label).toEqual(predicted(fresh));
+			return next.prediction!;
+		};
+		await scratch.db.update(rigs).set({ nominalEfficiency: 0.6 }).where(eq(rigs.id, ids.rig));
+		expect((await check('rig edited')).predictedMuzzleMps).not.toBeCloseTo(first.shot.prediction!.predictedMuzzleMps!, 3);
+		await scratch.db.update(testPlans).set({ requiredSpeedMps: 150 }).where(eq(testPlans.id, ids.plan));
+		expect((await check('plan edited')).passSpeed).toBe(false);
+		await scratch.db.update(rangeSessions).set({ temperatureC: -5 }).where(eq(rangeSessions.id, sessionId));
+		await check('session edited');
+		const [{ id: approvedId }] = await scratch.db
+			.insert(calibrations)
+			.values({
+				rigId: ids.rig,
+				projectileId: ids.ball,
+				status: 'approved',
+				approvedAt: new Date(),
+				approvedBy: ids.lead,
+				fitted: ['eta0'],
+				parameters: { eta0: 0.66 },
+				standardErrors: { eta0: 0.01 },
+				covariance: [[1e-4]],
+				summary: { converged: true, covarianceParameters: ['eta0'] },
+				sessionIds: [sessionId],
+				createdBy: ids.lead
+			})
+			.$returningId();
+		expect((await check('calibration approved')).calibrationId).toBe(approvedId);
+		await scratch.db.update(rigs).set({ nominalEfficiency: 0.55 }).where(eq(rigs.id, ids.rig));
+		await scratch.db.update(testPlans).set({ requiredSpeedMps: 96 }).where(eq(testPlans.id, ids.plan));
+		await scratch.db.update(calibrations).set({ status: 'superseded', supersededAt: new Date() }).where(eq(calibrations.id, approvedId));
 	});
 
 	it('keeps a sequence number given by the client, continues after it, and refuses a taken one (409)', async () => {
@@ -144,7 +200,7 @@ describe('logging a shot', () => {
 		const first = await shotsModule.create(sessionId, body, officer);
 		const again = await shotsModule.create(sessionId, { ...body, muzzleSpeedMps: 12 }, officer);
 		expect(again.created).toBe(false);
-		expect(again.shot).toEqual(first.shot);
+		expect(digits(again.shot)).toEqual(digits(first.shot));
 		const other = await newSession();
 		await expect(shotsModule.create(other, body, officer)).rejects.toMatchObject({ field: 'clientUuid', status: 409 });
 		expect(await scratch.db.select().from(shots).where(eq(shots.clientUuid, body.clientUuid))).toHaveLength(1);

@@ -10,11 +10,15 @@ import { name, selectList, tableName } from './db/raw';
 import { rangeSessions, shotPredictions, shots } from './db/schema';
 import { recordAudit } from './audit';
 import {
+	insertPredictionIfInputsUnchanged,
 	insertPredictionIfSessionUnchanged,
+	inputVersions,
+	INSERTED_SHOT_ID,
 	predictionInputs,
 	predictionInputsRead,
 	predictNewShot,
 	recomputePredictions,
+	type InputVersions,
 	type PredictionInputRows,
 	type ShotPrediction
 } from './reconcile';
@@ -88,13 +92,40 @@ export async function create(sessionId: number, input: ShotInput, user: AppUser)
 		if (!shot) throw new Error(`shot ${stored.resentId} vanished after it was stored`);
 		return { shot, created: false };
 	}
+	if (stored.prediction) return { shot: { ...stored.shot, prediction: stored.prediction }, created: true };
 	const prediction = await predictStoredShot(stored.shot, stored.session, stored.sessionUpdatedAt, stored.inputRows);
 	return { shot: { ...stored.shot, prediction }, created: true };
 }
 
 type Stored =
-	| { shot: Shot; session: RangeSession; sessionUpdatedAt: string; inputRows: PredictionInputRows }
+	| {
+			shot: Shot;
+			/** Written in the shot's own batch: computed from the session's last inputs, still current. */
+			prediction: ShotPrediction | null;
+			session: RangeSession;
+			sessionUpdatedAt: string;
+			inputRows: PredictionInputRows;
+	  }
 	| { resentId: number };
+
+/**
+ * Per session, the inputs its last logged shot was predicted from (the session row and
+ * predictionInputsRead's rows, as MariaDB held them under the locks). The next shot of the session
+ * is predicted from them before its batch is sent, and the batch writes that prediction only if
+ * they are still current (reconcile's insertPredictionIfInputsUnchanged): on a busy firing line
+ * a shot then takes one transaction, not two. Never trusted unchecked, so never stale in effect;
+ * bounded, oldest session out first.
+ */
+const lastInputs = new Map<number, { sessionRaw: Record<string, unknown>; session: RangeSession; inputRows: PredictionInputRows; versions: InputVersions }>();
+const LAST_INPUTS_KEPT = 200;
+
+function rememberInputs(sessionId: number, sessionRaw: Record<string, unknown>, session: RangeSession, inputRows: PredictionInputRows) {
+	const versions = inputVersions(sessionRaw, inputRows);
+	lastInputs.delete(sessionId);
+	if (!versions) return;
+	lastInputs.set(sessionId, { sessionRaw, session, inputRows, versions });
+	if (lastInputs.size > LAST_INPUTS_KEPT) lastInputs.delete(lastInputs.keys().next().value!);
+}
 
 async function storeShot(sessionId: number, input: ShotInput, user: AppUser): Promise<Stored> {
 	// Every column with a default is given, so the stored row is known (raw.insertedRow) but for
@@ -110,20 +141,34 @@ async function storeShot(sessionId: number, input: ShotInput, user: AppUser): Pr
 		createdAt: now,
 		updatedAt: now
 	};
+	// Predicted ahead from the session's last inputs, when known (lastInputs).
+	const known = lastInputs.get(sessionId);
+	const ahead = known && predictionOrNull(raw.insertedRow(shots, { ...values, id: 0, sequence: 0 }), known.session, known.inputRows, now);
 	const result = await raw.transaction(async (connection, commit) => {
 		// The locking read first: the consistent read of the next sequence number behind it sees
 		// every shot committed by the lock's previous holder.
-		const [sessionRows, , inserted, nextRows, inputRows] = (await raw.batch(connection, [
+		const [sessionRows, , inserted, , nextRows, inputRows, predicted] = (await raw.batch(connection, [
 			{ sql: `${SESSION_READ} FOR UPDATE`, values: [sessionId] },
 			{ sql: NEXT_SEQUENCE, values: [sessionId] },
 			insertShotStatement(values, hasRole(user.role, 'lead')),
+			INSERTED_SHOT_ID,
 			{ sql: 'SELECT @next_sequence AS next_sequence' },
 			predictionInputsRead(sessionId),
+			...(ahead ? [insertPredictionIfInputsUnchanged(input.clientUuid, ahead, known.versions)] : []),
 			commit()
-		])) as [SessionRows, unknown, ResultSetHeader, { '': { next_sequence: number } }[], PredictionInputRows];
-		return { sessionRows, inserted, nextSequence: nextRows[0][''].next_sequence, inputRows };
+		])) as [
+			SessionRows,
+			unknown,
+			ResultSetHeader,
+			unknown,
+			{ '': { next_sequence: number } }[],
+			PredictionInputRows,
+			ResultSetHeader | undefined
+		];
+		return { sessionRows, inserted, nextSequence: nextRows[0][''].next_sequence, inputRows, predicted };
 	});
 	const session = sessionOf(result.sessionRows, sessionId);
+	rememberInputs(sessionId, result.sessionRows[0].s, session, result.inputRows);
 	if (result.inserted.affectedRows !== 1) {
 		// Nothing inserted: the session is closed to this user — unless this is a resend.
 		const [earlier] = await raw.query<{ id: number }>(pool().pool, SHOT_BY_UUID, [input.clientUuid]);
@@ -133,7 +178,8 @@ async function storeShot(sessionId: number, input: ShotInput, user: AppUser): Pr
 	}
 	const shot = raw.insertedRow(shots, { ...values, id: result.inserted.insertId, sequence: input.sequence ?? result.nextSequence });
 	const sessionUpdatedAt = String(result.sessionRows[0].s[raw.columnName(rangeSessions.updatedAt)]);
-	return { shot, session, sessionUpdatedAt, inputRows: result.inputRows };
+	const prediction = ahead && result.predicted?.affectedRows === 1 ? { ...ahead, shotId: shot.id } : null;
+	return { shot, prediction, session, sessionUpdatedAt, inputRows: result.inputRows };
 }
 
 /** The prediction of a shot just stored (see create), or null when the model code failed. */
@@ -185,9 +231,9 @@ function sessionOf(rows: SessionRows, sessionId: number) {
  * The new shot's prediction, or null when the model code fails unexpectedly (the model's own
  * refusals, e.g. a shot that stays in the barrel, are a prediction with its error set).
  */
-function predictionOrNull(shot: Shot, session: RangeSession, inputRows: PredictionInputRows) {
+function predictionOrNull(shot: Shot, session: RangeSession, inputRows: PredictionInputRows, computedAt = new Date()) {
 	try {
-		return predictNewShot(shot, session, predictionInputs(inputRows, session));
+		return predictNewShot(shot, session, predictionInputs(inputRows, session), computedAt);
 	} catch (err) {
 		console.error(`Prediction of a shot of session ${session.id} failed:`, err);
 		return null;

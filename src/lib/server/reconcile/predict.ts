@@ -6,7 +6,7 @@
 // Called after every logged shot (for that shot) and after imports of 100 000 rows, so it reads
 // shots in pages and writes one multi-row upsert per page; sessions, plans and calibrations are
 // loaded once per page for whatever the page needs that is not cached yet.
-import { and, asc, eq, getTableName, gt, inArray, notInArray, sql } from 'drizzle-orm';
+import { and, asc, eq, getTableName, gt, inArray, notInArray, sql, type Column } from 'drizzle-orm';
 import mysql from 'mysql2';
 import { PhysicsInputError } from '$lib/physics/errors';
 import { predictShot, type ShotPredictionResult, type ShotSetup } from '$lib/physics/fit/launcher';
@@ -503,5 +503,77 @@ export function insertPredictionIfSessionUnchanged(prediction: ShotPrediction, s
 	return {
 		sql: INSERT_PREDICTION_IF_SESSION_UNCHANGED,
 		values: [...rowValues(prediction, prediction.computedAt), sessionId, sessionUpdatedAt]
+	};
+}
+
+/**
+ * What a prediction made from a session row and predictionInputsRead's rows was made from, as
+ * MariaDB holds it: the updated_at (DATETIME(3) text) of the session, rig, projectile and plan,
+ * and the id of the approved calibration. A prediction is current while these are.
+ */
+export interface InputVersions {
+	sessionUpdatedAt: string;
+	rigUpdatedAt: string;
+	projectileUpdatedAt: string;
+	planUpdatedAt: string | null;
+	approvedCalibrationId: number | null;
+}
+
+export function inputVersions(sessionRaw: Record<string, unknown>, rows: PredictionInputRows): InputVersions | null {
+	const refs = rows[0];
+	if (!refs) return null;
+	const updated = (raw: Record<string, unknown>, column: Column) => raw[columnName(column)] as string | null;
+	const approved = rows.map((r) => r.c[columnName(calibrations.id)] as number | null).filter((id): id is number => id !== null);
+	return {
+		sessionUpdatedAt: String(updated(sessionRaw, rangeSessions.updatedAt)),
+		rigUpdatedAt: String(updated(refs.r, rigs.updatedAt)),
+		projectileUpdatedAt: String(updated(refs.p, projectiles.updatedAt)),
+		planUpdatedAt: updated(refs.tp, testPlans.updatedAt),
+		approvedCalibrationId: approved.length > 0 ? Math.max(...approved) : null
+	};
+}
+
+// The prediction of the shot the same batch has just inserted (@inserted_shot_id, see
+// INSERTED_SHOT_ID; named by its clientUuid too), written only if what it was computed from is
+// what MariaDB holds now (the batch has locked it): the session, rig, projectile and plan rows
+// unchanged since, and the same approved calibration. Otherwise it writes nothing.
+const INSERT_PREDICTION_IF_INPUTS_UNCHANGED =
+	`INSERT INTO ${tableName(shotPredictions)} (${WRITTEN_NAMES.map((n) => `\`${n}\``).join(', ')}) ` +
+	`SELECT ${name(shots.id, 'sh')}, ${WRITTEN_NAMES.slice(1)
+		.map(() => '?')
+		.join(', ')} ` +
+	`FROM ${tableName(shots)} sh ` +
+	`JOIN ${tableName(rangeSessions)} s ON ${name(rangeSessions.id, 's')} = ${name(shots.sessionId, 'sh')} ` +
+	`JOIN ${tableName(rigs)} r ON ${name(rigs.id, 'r')} = ${name(rangeSessions.rigId, 's')} ` +
+	`JOIN ${tableName(projectiles)} p ON ${name(projectiles.id, 'p')} = ${name(rangeSessions.projectileId, 's')} ` +
+	`LEFT JOIN ${tableName(testPlans)} tp ON ${name(testPlans.id, 'tp')} = ${name(rangeSessions.testPlanId, 's')} ` +
+	`WHERE ${name(shots.id, 'sh')} = @inserted_shot_id AND ${name(shots.clientUuid, 'sh')} = ? ` +
+	`AND ${name(rangeSessions.updatedAt, 's')} = ? AND ${name(rigs.updatedAt, 'r')} = ? AND ${name(projectiles.updatedAt, 'p')} = ? ` +
+	`AND ${name(testPlans.updatedAt, 'tp')} <=> ? ` +
+	`AND (SELECT MAX(${name(calibrations.id, 'c')}) FROM ${tableName(calibrations)} c WHERE ${name(calibrations.rigId, 'c')} = ${name(rangeSessions.rigId, 's')} ` +
+	`AND ${name(calibrations.projectileId, 'c')} = ${name(rangeSessions.projectileId, 's')} AND ${name(calibrations.status, 'c')} = 'approved') <=> ?`;
+
+/**
+ * Put right behind a shot's INSERT in a batch: the new shot's id into @inserted_shot_id, or NULL
+ * when that INSERT stored nothing (LAST_INSERT_ID() would still hold an earlier shot's id).
+ */
+export const INSERTED_SHOT_ID: Statement = { sql: 'SET @inserted_shot_id = IF(ROW_COUNT() = 1, LAST_INSERT_ID(), NULL)' };
+
+/**
+ * The statement storing `prediction`, computed from inputs at `versions`, for the shot with
+ * `clientUuid` that the same batch has just inserted — only if those inputs are still current.
+ */
+export function insertPredictionIfInputsUnchanged(clientUuid: string, prediction: Omit<ShotPrediction, 'shotId'>, versions: InputVersions): Statement {
+	return {
+		sql: INSERT_PREDICTION_IF_INPUTS_UNCHANGED,
+		values: [
+			...rowValues({ shotId: 0, ...prediction }, prediction.computedAt).slice(1),
+			clientUuid,
+			versions.sessionUpdatedAt,
+			versions.rigUpdatedAt,
+			versions.projectileUpdatedAt,
+			versions.planUpdatedAt,
+			versions.approvedCalibrationId
+		]
 	};
 }
