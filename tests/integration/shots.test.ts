@@ -147,8 +147,11 @@ describe('logging a shot', () => {
 	it('predicts the next shot from the rig, plan and calibration as changed between two shots, not as last seen', async () => {
 		const sessionId = await newSession();
 		const first = await shotsModule.create(sessionId, shot(), officer);
+		// The first shot's batch read the inputs and kept them; the second was predicted from them ahead.
+		expect(shotsModule.testing.lastInputs.has(sessionId)).toBe(true);
 		const same = await shotsModule.create(sessionId, shot(), officer);
 		expect(same.shot.prediction?.predictedMuzzleMps).toBeCloseTo(first.shot.prediction!.predictedMuzzleMps!, 12);
+		expect(shotsModule.testing.lastInputs.has(sessionId)).toBe(true);
 
 		const check = async (label: string) => {
 			const { shot: next } = await shotsModule.create(sessionId, shot(), officer);
@@ -159,6 +162,10 @@ describe('logging a shot', () => {
 		};
 		await scratch.db.update(rigs).set({ nominalEfficiency: 0.6 }).where(eq(rigs.id, ids.rig));
 		expect((await check('rig edited')).predictedMuzzleMps).not.toBeCloseTo(first.shot.prediction!.predictedMuzzleMps!, 3);
+		// The inputs found stale were forgotten; the next shot reads them again and keeps them.
+		expect(shotsModule.testing.lastInputs.has(sessionId)).toBe(false);
+		await check('after the rig edit');
+		expect(shotsModule.testing.lastInputs.has(sessionId)).toBe(true);
 		await scratch.db.update(testPlans).set({ requiredSpeedMps: 150 }).where(eq(testPlans.id, ids.plan));
 		expect((await check('plan edited')).passSpeed).toBe(false);
 		await scratch.db.update(rangeSessions).set({ temperatureC: -5 }).where(eq(rangeSessions.id, sessionId));

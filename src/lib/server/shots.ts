@@ -13,7 +13,7 @@ import {
 	insertPredictionIfInputsUnchanged,
 	insertPredictionIfSessionUnchanged,
 	inputVersions,
-	INSERTED_SHOT_ID,
+	INSERTED_SHOT_ID_VARIABLE,
 	predictionInputs,
 	predictionInputsRead,
 	predictNewShot,
@@ -40,7 +40,13 @@ function isDuplicate(err: unknown, index: string) {
 // shot by shot), so it runs as hand-written SQL in batches (db/raw.ts says why).
 const SESSION_READ = `SELECT ${selectList(rangeSessions, 's')} FROM ${tableName(rangeSessions)} s WHERE ${name(rangeSessions.id, 's')} = ?`;
 const SHOT_BY_UUID = `SELECT ${name(shots.id)} AS id, ${name(shots.sessionId)} AS session_id FROM ${tableName(shots)} WHERE ${name(shots.clientUuid)} = ?`;
-/** The next free sequence number of the session, into @next_sequence (read after the session's lock: see store). */
+/**
+ * Right behind the shot's INSERT: its id into the variable the prediction's guarded INSERT reads,
+ * or NULL when the INSERT stored nothing (LAST_INSERT_ID() would still hold an earlier shot's id);
+ * answers shot_id and next_sequence.
+ */
+const INSERTED_SHOT = `SELECT ${INSERTED_SHOT_ID_VARIABLE} := IF(ROW_COUNT() = 1, LAST_INSERT_ID(), NULL) AS shot_id, @next_sequence AS next_sequence`;
+/** The next free sequence number of the session, into @next_sequence (read after the session's lock: see storeShot). */
 const NEXT_SEQUENCE = `SET @next_sequence = (SELECT COALESCE(MAX(${name(shots.sequence)}), 0) + 1 FROM ${tableName(shots)} WHERE ${name(shots.sessionId)} = ?)`;
 
 /**
@@ -63,18 +69,19 @@ function insertShotStatement(values: Omit<typeof shots.$inferInsert, 'sequence'>
  * A resend of the same clientUuid returns the stored shot (created: false) and changes nothing.
  * Without a sequence the server assigns the next free one.
  *
- * Two transactions of one batch each (db/raw.ts):
- * 1. The shot: the session row locked for update (several tablets on one session queue there,
- *    which makes their sequence numbers distinct), the next sequence number read after the lock,
- *    the INSERT, then what the prediction needs, share-locked (reconcile's predictionInputsRead:
- *    a rig, plan or calibration change either committed before and is read, or waits, and its
- *    recomputation then sees this shot), and the COMMIT: the session lock is held only while
- *    MariaDB runs that batch.
- * 2. Its prediction, computed in between, written only if the session row is unchanged since (1)
- *    — a session edit recomputes the shot itself — and with a plain INSERT that fails rather than
- *    overwrite a prediction an approval or edit wrote meanwhile. Either way it is then computed
- *    again from what is stored, under the locks an edit takes.
- * The locks come in the order an approval takes them (sessions, then calibrations): no deadlock.
+ * One transaction sent as one batch (db/raw.ts), on a busy firing line:
+ * - the session row locked for update — several tablets on one session queue there, which makes
+ *   their sequence numbers distinct — and the next sequence number read after the lock;
+ * - the shot's INSERT (nothing when the session is deleted, or closed to this user);
+ * - its prediction, computed beforehand from the inputs of the session's last shot (lastInputs)
+ *   and written only if they are still what MariaDB holds, read share-locked by that INSERT;
+ * - the COMMIT. The session lock is held only while MariaDB runs the batch.
+ * For a session's first shot, or when its inputs changed, the batch reads the inputs instead
+ * (share-locked: reconcile's predictionInputsRead) and a second transaction writes the
+ * prediction (predictStoredShot), or it is computed again from what is stored, under the locks
+ * an edit takes. The locks come in the order an approval takes them (sessions, then the pair's
+ * calibrations), so the two cannot deadlock, and a change to a rig, plan, session or calibration
+ * either shows in the prediction or recomputes it after.
  */
 export async function create(sessionId: number, input: ShotInput, user: AppUser): Promise<{ shot: ShotWithPrediction; created: boolean }> {
 	let stored: Stored;
@@ -104,7 +111,8 @@ type Stored =
 			prediction: ShotPrediction | null;
 			session: RangeSession;
 			sessionUpdatedAt: string;
-			inputRows: PredictionInputRows;
+			/** Read in the shot's batch when no prediction was made ahead; null otherwise. */
+			inputRows: PredictionInputRows | null;
 	  }
 	| { resentId: number };
 
@@ -146,29 +154,31 @@ async function storeShot(sessionId: number, input: ShotInput, user: AppUser): Pr
 	const ahead = known && predictionOrNull(raw.insertedRow(shots, { ...values, id: 0, sequence: 0 }), known.session, known.inputRows, now);
 	const result = await raw.transaction(async (connection, commit) => {
 		// The locking read first: the consistent read of the next sequence number behind it sees
-		// every shot committed by the lock's previous holder.
-		const [sessionRows, , inserted, , nextRows, inputRows, predicted] = (await raw.batch(connection, [
+		// every shot committed by the lock's previous holder. With a prediction made ahead, its
+		// guarded INSERT reads (share-locked) what it was made from; without, the inputs are read
+		// here for the second transaction and the next shot.
+		const results = await raw.batch(connection, [
 			{ sql: `${SESSION_READ} FOR UPDATE`, values: [sessionId] },
 			{ sql: NEXT_SEQUENCE, values: [sessionId] },
 			insertShotStatement(values, hasRole(user.role, 'lead')),
-			INSERTED_SHOT_ID,
-			{ sql: 'SELECT @next_sequence AS next_sequence' },
-			predictionInputsRead(sessionId),
-			...(ahead ? [insertPredictionIfInputsUnchanged(input.clientUuid, ahead, known.versions)] : []),
+			{ sql: INSERTED_SHOT },
+			ahead ? insertPredictionIfInputsUnchanged(input.clientUuid, ahead, known.versions) : predictionInputsRead(sessionId),
 			commit()
-		])) as [
-			SessionRows,
-			unknown,
-			ResultSetHeader,
-			unknown,
-			{ '': { next_sequence: number } }[],
-			PredictionInputRows,
-			ResultSetHeader | undefined
-		];
-		return { sessionRows, inserted, nextSequence: nextRows[0][''].next_sequence, inputRows, predicted };
+		]);
+		const [sessionRows, , inserted, idRows, last] = results as [SessionRows, unknown, ResultSetHeader, { '': { next_sequence: number } }[], unknown];
+		return {
+			sessionRows,
+			inserted,
+			nextSequence: idRows[0][''].next_sequence,
+			inputRows: ahead ? null : (last as PredictionInputRows),
+			predicted: ahead ? (last as ResultSetHeader).affectedRows === 1 : false
+		};
 	});
 	const session = sessionOf(result.sessionRows, sessionId);
-	rememberInputs(sessionId, result.sessionRows[0].s, session, result.inputRows);
+	// Fresh inputs are remembered for the next shot; inputs found stale are forgotten, so the next
+	// shot reads them again.
+	if (result.inputRows) rememberInputs(sessionId, result.sessionRows[0].s, session, result.inputRows);
+	else if (!result.predicted) lastInputs.delete(sessionId);
 	if (result.inserted.affectedRows !== 1) {
 		// Nothing inserted: the session is closed to this user — unless this is a resend.
 		const [earlier] = await raw.query<{ id: number }>(pool().pool, SHOT_BY_UUID, [input.clientUuid]);
@@ -178,18 +188,25 @@ async function storeShot(sessionId: number, input: ShotInput, user: AppUser): Pr
 	}
 	const shot = raw.insertedRow(shots, { ...values, id: result.inserted.insertId, sequence: input.sequence ?? result.nextSequence });
 	const sessionUpdatedAt = String(result.sessionRows[0].s[raw.columnName(rangeSessions.updatedAt)]);
-	const prediction = ahead && result.predicted?.affectedRows === 1 ? { ...ahead, shotId: shot.id } : null;
+	const prediction = ahead && result.predicted ? { ...ahead, shotId: shot.id } : null;
 	return { shot, prediction, session, sessionUpdatedAt, inputRows: result.inputRows };
 }
 
-/** The prediction of a shot just stored (see create), or null when the model code failed. */
+/**
+ * The prediction of a shot just stored, in a transaction of its own (see create), from the inputs
+ * its batch read: written only if the session row is unchanged since (a session edit recomputes
+ * the shot itself) and with a plain INSERT that fails rather than overwrite a prediction an
+ * approval or edit wrote meanwhile. Otherwise — or without inputs (a prediction made ahead was
+ * found stale) — it is computed again from what is stored, under the locks an edit takes. Null
+ * when the model code failed.
+ */
 async function predictStoredShot(
 	shot: Shot,
 	session: RangeSession,
 	sessionUpdatedAt: string,
-	inputRows: PredictionInputRows
+	inputRows: PredictionInputRows | null
 ): Promise<ShotPrediction | null> {
-	const prediction = predictionOrNull(shot, session, inputRows);
+	const prediction = inputRows && predictionOrNull(shot, session, inputRows);
 	try {
 		if (prediction) {
 			const [insert] = (await raw.transaction((connection, commit) =>
@@ -203,8 +220,8 @@ async function predictStoredShot(
 	}
 	try {
 		// The session changed since the shot was stored (or a prediction was written meanwhile, or
-		// the model code failed): compute it again from what is stored now, under the locks an
-		// edit or approval takes, in their order.
+		// the one made ahead was found stale, or the model code failed): compute it again from what
+		// is stored now, under the locks an edit or approval takes, in their order.
 		await db.transaction(async (tx) => {
 			await lockForWrite(tx, session.id);
 			await tx.execute(raw.asDrizzle(predictionInputsRead(session.id)));
@@ -356,5 +373,5 @@ export async function byIds(ids: number[]) {
 	return db.select().from(shots).where(inArray(shots.id, ids));
 }
 
-/** Internals reached by the integration tests (the fallback of a prediction found stale). */
-export const testing = { predictStoredShot };
+/** Internals reached by the integration tests: the fallback of a prediction found stale, the inputs kept per session. */
+export const testing = { predictStoredShot, lastInputs };

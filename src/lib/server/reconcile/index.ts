@@ -52,7 +52,7 @@ export {
 	insertPredictionIfInputsUnchanged,
 	insertPredictionIfSessionUnchanged,
 	inputVersions,
-	INSERTED_SHOT_ID,
+	INSERTED_SHOT_ID_VARIABLE,
 	type InputVersions,
 	predictionInputsRead,
 	predictionInputs,

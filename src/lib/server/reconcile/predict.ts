@@ -533,8 +533,14 @@ export function inputVersions(sessionRaw: Record<string, unknown>, rows: Predict
 	};
 }
 
-// The prediction of the shot the same batch has just inserted (@inserted_shot_id, see
-// INSERTED_SHOT_ID; named by its clientUuid too), written only if what it was computed from is
+/**
+ * The user variable the caller's batch sets to the id of the shot it has just inserted, or to
+ * NULL when that INSERT stored nothing (shots.ts).
+ */
+export const INSERTED_SHOT_ID_VARIABLE = '@inserted_shot_id';
+
+// The prediction of the shot the same batch has just inserted (INSERTED_SHOT_ID_VARIABLE; named
+// by its clientUuid too), written only if what it was computed from is
 // what MariaDB holds now (the batch has locked it): the session, rig, projectile and plan rows
 // unchanged since, and the same approved calibration. Otherwise it writes nothing.
 const INSERT_PREDICTION_IF_INPUTS_UNCHANGED =
@@ -547,17 +553,11 @@ const INSERT_PREDICTION_IF_INPUTS_UNCHANGED =
 	`JOIN ${tableName(rigs)} r ON ${name(rigs.id, 'r')} = ${name(rangeSessions.rigId, 's')} ` +
 	`JOIN ${tableName(projectiles)} p ON ${name(projectiles.id, 'p')} = ${name(rangeSessions.projectileId, 's')} ` +
 	`LEFT JOIN ${tableName(testPlans)} tp ON ${name(testPlans.id, 'tp')} = ${name(rangeSessions.testPlanId, 's')} ` +
-	`WHERE ${name(shots.id, 'sh')} = @inserted_shot_id AND ${name(shots.clientUuid, 'sh')} = ? ` +
+	`WHERE ${name(shots.id, 'sh')} = ${INSERTED_SHOT_ID_VARIABLE} AND ${name(shots.clientUuid, 'sh')} = ? ` +
 	`AND ${name(rangeSessions.updatedAt, 's')} = ? AND ${name(rigs.updatedAt, 'r')} = ? AND ${name(projectiles.updatedAt, 'p')} = ? ` +
 	`AND ${name(testPlans.updatedAt, 'tp')} <=> ? ` +
 	`AND (SELECT MAX(${name(calibrations.id, 'c')}) FROM ${tableName(calibrations)} c WHERE ${name(calibrations.rigId, 'c')} = ${name(rangeSessions.rigId, 's')} ` +
 	`AND ${name(calibrations.projectileId, 'c')} = ${name(rangeSessions.projectileId, 's')} AND ${name(calibrations.status, 'c')} = 'approved') <=> ?`;
-
-/**
- * Put right behind a shot's INSERT in a batch: the new shot's id into @inserted_shot_id, or NULL
- * when that INSERT stored nothing (LAST_INSERT_ID() would still hold an earlier shot's id).
- */
-export const INSERTED_SHOT_ID: Statement = { sql: 'SET @inserted_shot_id = IF(ROW_COUNT() = 1, LAST_INSERT_ID(), NULL)' };
 
 /**
  * The statement storing `prediction`, computed from inputs at `versions`, for the shot with
