@@ -150,15 +150,6 @@ export function insertColumns<T extends Table>(table: T, values: InferInsertMode
 	return { keys, names, params };
 }
 
-/** An INSERT of one row: the columns given (undefined ones left to their defaults), converted by the columns. */
-export function insertStatement<T extends Table>(table: T, values: InferInsertModel<T>): Statement {
-	const { names, params } = insertColumns(table, values);
-	return {
-		sql: `INSERT INTO ${tableName(table)} (${names.join(', ')}) VALUES (${names.map(() => '?').join(', ')})`,
-		values: params
-	};
-}
-
 /**
  * The row an INSERT of `values` stored, without reading it back: every column of the table from
  * `values`, null where not given. Only for inserts that give every column with a default (a
