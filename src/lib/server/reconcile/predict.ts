@@ -509,7 +509,10 @@ export function insertPredictionIfSessionUnchanged(prediction: ShotPrediction, s
 /**
  * What a prediction made from a session row and predictionInputsRead's rows was made from, as
  * MariaDB holds it: the updated_at (DATETIME(3) text) of the session, rig, projectile and plan,
- * and the id of the approved calibration. A prediction is current while these are.
+ * and the id of the approved calibration (approved rows change only their status). A prediction
+ * is current while these are. To the millisecond: two edits of one row within the same
+ * millisecond, a shot logged between them, would go unseen — every edit recomputes the shots it
+ * touches, and the next one would correct it.
  */
 export interface InputVersions {
 	sessionUpdatedAt: string;
