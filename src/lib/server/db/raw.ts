@@ -21,7 +21,7 @@
 // statement texts are constants of the modules that use them, never built from input.
 import { getTableColumns, getTableName, sql, type Column, type InferInsertModel, type InferSelectModel, type SQL, type Table } from 'drizzle-orm';
 import { toSnakeCase } from 'drizzle-orm/casing';
-import type { Pool as CorePool, PoolConnection as CorePoolConnection, QueryOptions, ResultSetHeader } from 'mysql2';
+import type { Pool as CorePool, PoolConnection as CorePoolConnection, QueryOptions } from 'mysql2';
 import { transactionPool } from './index';
 
 /** A pooled connection (inside a transaction) or the pool itself (one statement, autocommit). */
@@ -59,11 +59,6 @@ export function query<Row = Record<string, unknown>>(
 	options: { nestTables?: boolean } = {}
 ): Promise<Row[]> {
 	return run<Row[]>(on, { sql: sqlText, values, typeCast, nestTables: options.nestTables });
-}
-
-/** The write result (insertId, affectedRows) of an INSERT, UPDATE or DELETE. */
-export function execute(on: Queryable, sqlText: string, values: unknown[] = []): Promise<ResultSetHeader> {
-	return run<ResultSetHeader>(on, { sql: sqlText, values });
 }
 
 /** One statement of a batch: constant text with `?` placeholders, and its values. */
