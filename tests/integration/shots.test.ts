@@ -292,6 +292,25 @@ describe('the prediction written after the shot', () => {
 		expect(written?.predictedTargetMps).not.toBe(stored.prediction?.predictedTargetMps);
 	});
 
+	it('a rig edit racing with 30 shots being logged leaves every shot predicted as the edited rig would', async () => {
+		const { rigs: rigRegistry } = await import('../../src/lib/server/rigs');
+		const sessionId = await newSession();
+		await shotsModule.create(sessionId, shot(), officer);
+		const logging = Promise.all(Array.from({ length: 30 }, () => shotsModule.create(sessionId, shot(), officer)));
+		const editing = rigRegistry.update(ids.rig, { nominalEfficiency: 0.62 }, ids.lead);
+		await Promise.all([logging, editing]);
+
+		// Whatever the interleaving, what is stored equals a recomputation from the final state.
+		const stored = await scratch.db.select().from(shotPredictions);
+		const ofSession = new Set((await scratch.db.select({ id: shots.id }).from(shots).where(eq(shots.sessionId, sessionId))).map((r) => r.id));
+		const before = new Map(stored.filter((p) => ofSession.has(p.shotId)).map((p) => [p.shotId, predicted(p)]));
+		expect(before.size).toBe(31);
+		await scratch.db.transaction((tx) => reconcile.recomputePredictions(tx, { sessionIds: [sessionId] }));
+		const after = (await scratch.db.select().from(shotPredictions)).filter((p) => ofSession.has(p.shotId));
+		for (const row of after) expect(before.get(row.shotId), `shot ${row.shotId}`).toEqual(predicted(row));
+		await scratch.db.update(rigs).set({ nominalEfficiency: 0.55 }).where(eq(rigs.id, ids.rig));
+	});
+
 	it('an approval racing with 30 shots being logged leaves every shot predicted under the approved calibration', async () => {
 		const sessionId = await newSession();
 		await shotsModule.create(sessionId, shot(), officer);
