@@ -284,7 +284,9 @@ describe('the prediction written after the shot', () => {
 			const [rows] = await raw.batch(connection, [reconcile.predictionInputsRead(sessionId), commit()]);
 			return rows as import('../../src/lib/server/reconcile').PredictionInputRows;
 		});
-		const written = await shotsModule.testing.predictStoredShot(stored, oldConditions, '2000-01-01 00:00:00.000', inputRows);
+		// The inputs as read with the shot, but the session's time from before the edit.
+		const versions = reconcile.inputVersions({ updated_at: '2000-01-01 00:00:00.000' }, inputRows)!;
+		const written = await shotsModule.testing.predictStoredShot(stored, oldConditions, { inputRows, versions });
 
 		await scratch.db.transaction((tx) => reconcile.recomputePredictions(tx, { shotIds: [stored.id] }));
 		const [fresh] = await scratch.db.select().from(shotPredictions).where(eq(shotPredictions.shotId, stored.id));

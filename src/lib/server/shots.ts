@@ -91,8 +91,9 @@ export async function create(sessionId: number, input: ShotInput, user: AppUser)
 		if (isDuplicate(err, 'shots_session_sequence_unique'))
 			throw new SessionRuleError('sequence', `Sequence number ${input.sequence} is already taken in this session.`, 409);
 		// A resend of a stored shot, or two sends of one shot that raced (the first one won).
-		if (isDuplicate(err, 'shots_client_uuid_unique')) stored = { resentId: await resent(pool().pool, sessionId, input.clientUuid) };
-		else throw err;
+		const resentId = isDuplicate(err, 'shots_client_uuid_unique') ? await resent(pool().pool, sessionId, input.clientUuid) : null;
+		if (resentId === null) throw err;
+		stored = { resentId };
 	}
 	if ('resentId' in stored) {
 		const shot = await getWithPrediction(stored.resentId);
@@ -100,7 +101,7 @@ export async function create(sessionId: number, input: ShotInput, user: AppUser)
 		return { shot, created: false };
 	}
 	if (stored.prediction) return { shot: { ...stored.shot, prediction: stored.prediction }, created: true };
-	const prediction = await predictStoredShot(stored.shot, stored.session, stored.sessionUpdatedAt, stored.inputRows);
+	const prediction = await predictStoredShot(stored.shot, stored.session, stored.fresh);
 	return { shot: { ...stored.shot, prediction }, created: true };
 }
 
@@ -110,9 +111,8 @@ type Stored =
 			/** Written in the shot's own batch: computed from the session's last inputs, still current. */
 			prediction: ShotPrediction | null;
 			session: RangeSession;
-			sessionUpdatedAt: string;
-			/** Read in the shot's batch when no prediction was made ahead; null otherwise. */
-			inputRows: PredictionInputRows | null;
+			/** The inputs, read in the shot's batch when no prediction was made ahead; null otherwise. */
+			fresh: FreshInputs | null;
 	  }
 	| { resentId: number };
 
@@ -124,14 +124,16 @@ type Stored =
  * a shot then takes one transaction, not two. Never trusted unchecked, so never stale in effect;
  * bounded, oldest session out first.
  */
-const lastInputs = new Map<number, { sessionRaw: Record<string, unknown>; session: RangeSession; inputRows: PredictionInputRows; versions: InputVersions }>();
+const lastInputs = new Map<number, { session: RangeSession; inputRows: PredictionInputRows; versions: InputVersions }>();
 const LAST_INPUTS_KEPT = 200;
 
-function rememberInputs(sessionId: number, sessionRaw: Record<string, unknown>, session: RangeSession, inputRows: PredictionInputRows) {
-	const versions = inputVersions(sessionRaw, inputRows);
+/** predictionInputsRead's rows and what they were read at (null without a rig or projectile). */
+type FreshInputs = { inputRows: PredictionInputRows; versions: InputVersions | null };
+
+function rememberInputs(sessionId: number, session: RangeSession, fresh: FreshInputs) {
 	lastInputs.delete(sessionId);
-	if (!versions) return;
-	lastInputs.set(sessionId, { sessionRaw, session, inputRows, versions });
+	if (!fresh.versions) return;
+	lastInputs.set(sessionId, { session, inputRows: fresh.inputRows, versions: fresh.versions });
 	if (lastInputs.size > LAST_INPUTS_KEPT) lastInputs.delete(lastInputs.keys().next().value!);
 }
 
@@ -177,19 +179,19 @@ async function storeShot(sessionId: number, input: ShotInput, user: AppUser): Pr
 	const session = sessionOf(result.sessionRows, sessionId);
 	// Fresh inputs are remembered for the next shot; inputs found stale are forgotten, so the next
 	// shot reads them again.
-	if (result.inputRows) rememberInputs(sessionId, result.sessionRows[0].s, session, result.inputRows);
+	const fresh = result.inputRows && { inputRows: result.inputRows, versions: inputVersions(result.sessionRows[0].s, result.inputRows) };
+	if (fresh) rememberInputs(sessionId, session, fresh);
 	else if (!result.predicted) lastInputs.delete(sessionId);
 	if (result.inserted.affectedRows !== 1) {
 		// Nothing inserted: the session is closed to this user — unless this is a resend.
-		const [earlier] = await raw.query<{ id: number }>(pool().pool, SHOT_BY_UUID, [input.clientUuid]);
-		if (earlier) return { resentId: await resent(pool().pool, sessionId, input.clientUuid) };
+		const resentId = await resent(pool().pool, sessionId, input.clientUuid);
+		if (resentId !== null) return { resentId };
 		assertWritable(session, user);
 		throw new Error(`shot of session ${sessionId} not inserted although the session is writable`);
 	}
 	const shot = raw.insertedRow(shots, { ...values, id: result.inserted.insertId, sequence: input.sequence ?? result.nextSequence });
-	const sessionUpdatedAt = String(result.sessionRows[0].s[raw.columnName(rangeSessions.updatedAt)]);
 	const prediction = ahead && result.predicted ? { ...ahead, shotId: shot.id } : null;
-	return { shot, prediction, session, sessionUpdatedAt, inputRows: result.inputRows };
+	return { shot, prediction, session, fresh };
 }
 
 /**
@@ -200,17 +202,13 @@ async function storeShot(sessionId: number, input: ShotInput, user: AppUser): Pr
  * found stale) — it is computed again from what is stored, under the locks an edit takes. Null
  * when the model code failed.
  */
-async function predictStoredShot(
-	shot: Shot,
-	session: RangeSession,
-	sessionUpdatedAt: string,
-	inputRows: PredictionInputRows | null
-): Promise<ShotPrediction | null> {
-	const prediction = inputRows && predictionOrNull(shot, session, inputRows);
+async function predictStoredShot(shot: Shot, session: RangeSession, fresh: FreshInputs | null): Promise<ShotPrediction | null> {
+	const versions = fresh?.versions;
+	const prediction = versions && predictionOrNull(shot, session, fresh.inputRows);
 	try {
 		if (prediction) {
 			const [insert] = (await raw.transaction((connection, commit) =>
-				raw.batch(connection, [insertPredictionIfSessionUnchanged(prediction, session.id, sessionUpdatedAt), commit()])
+				raw.batch(connection, [insertPredictionIfSessionUnchanged(prediction, session.id, versions.sessionUpdatedAt), commit()])
 			)) as [ResultSetHeader];
 			if (insert.affectedRows === 1) return prediction;
 		}
@@ -257,10 +255,10 @@ function predictionOrNull(shot: Shot, session: RangeSession, inputRows: Predicti
 	}
 }
 
-/** The id of the stored shot of a resent clientUuid; 409 when the UUID belongs to another session's shot. */
-async function resent(connection: raw.Queryable, sessionId: number, clientUuid: string): Promise<number> {
+/** The id of the stored shot of a resent clientUuid, or null when none has it; 409 when the UUID belongs to another session's shot. */
+async function resent(connection: raw.Queryable, sessionId: number, clientUuid: string): Promise<number | null> {
 	const [row] = await raw.query<{ id: number; session_id: number }>(connection, SHOT_BY_UUID, [clientUuid]);
-	if (!row) throw new Error(`the shot with clientUuid ${clientUuid} was reported stored but is not`);
+	if (!row) return null;
 	if (row.session_id !== sessionId)
 		throw new SessionRuleError('clientUuid', 'This clientUuid belongs to a shot of another session.', 409);
 	return row.id;

@@ -47,11 +47,7 @@ function run<T>(on: Queryable, options: QueryOptions): Promise<T> {
 	});
 }
 
-/**
- * A statement with `?` placeholders, run with the app's type conversions. On one connection,
- * statements are sent in the order they are called: a caller may start the next before awaiting
- * the previous one (it is queued in the driver, sent as soon as the answer before it arrives).
- */
+/** One statement with `?` placeholders, run with the app's type conversions (prepared when it has values). */
 export function query<Row = Record<string, unknown>>(
 	on: Queryable,
 	sqlText: string,
@@ -179,9 +175,8 @@ export type Commit = () => Statement;
  * opens the transaction: no START TRANSACTION round trip.
  *
  * `work` may end its last batch with `commit()`, so the locks go with that batch's answer rather
- * than a round trip later. Only where a failure of any statement before it leaves nothing written
- * that should not be committed: MariaDB stops at the failing statement, the COMMIT is not run, and
- * the transaction is rolled back here.
+ * than a round trip later. Should a statement before it fail, MariaDB stops there: the COMMIT is
+ * not run, and the transaction is rolled back here.
  */
 export async function transaction<T>(work: (connection: Connection, commit: Commit) => Promise<T>): Promise<T> {
 	const connection = await connect();

@@ -6,7 +6,7 @@
 // Called after every logged shot (for that shot) and after imports of 100 000 rows, so it reads
 // shots in pages and writes one multi-row upsert per page; sessions, plans and calibrations are
 // loaded once per page for whatever the page needs that is not cached yet.
-import { and, asc, eq, getTableName, gt, inArray, notInArray, sql, type Column } from 'drizzle-orm';
+import { and, asc, eq, gt, inArray, notInArray, sql, type Column } from 'drizzle-orm';
 import mysql from 'mysql2';
 import { PhysicsInputError } from '$lib/physics/errors';
 import { predictShot, type ShotPredictionResult, type ShotSetup } from '$lib/physics/fit/launcher';
@@ -238,7 +238,9 @@ const WRITTEN_COLUMNS = [
 	'predictionError'
 ] as const satisfies readonly (keyof PredictionRow)[];
 const WRITTEN_NAMES = [...WRITTEN_COLUMNS.map(sqlName), sqlName('computedAt')];
-const UPSERT_HEAD = `INSERT INTO \`${getTableName(shotPredictions)}\` (${WRITTEN_NAMES.map((n) => `\`${n}\``).join(', ')}) VALUES `;
+/** "INSERT INTO shot_predictions (…the written columns…)", shared by every statement that writes predictions. */
+const INSERT_INTO_PREDICTIONS = `INSERT INTO ${tableName(shotPredictions)} (${WRITTEN_NAMES.map((n) => `\`${n}\``).join(', ')})`;
+const UPSERT_HEAD = `${INSERT_INTO_PREDICTIONS} VALUES `;
 const UPSERT_TAIL =
 	' ON DUPLICATE KEY UPDATE ' +
 	WRITTEN_NAMES.slice(1)
@@ -252,8 +254,8 @@ function literal(value: unknown): string {
 	return mysql.escape(String(value));
 }
 
-/** A UTC instant as DATETIME(3) text (the connections work in UTC). */
-const timeText = (at: Date) => at.toISOString().slice(0, 23).replace('T', ' ');
+/** computed_at as the column writes it (DATETIME(3) text in UTC). */
+const timeText = (at: Date) => shotPredictions.computedAt.mapToDriverValue(at);
 
 function upsertStatement(rows: PredictionRow[], computedAt: Date): string {
 	const at = `'${timeText(computedAt)}'`;
@@ -422,6 +424,13 @@ export async function sessionIdsOfPair(
 	return rows.map((r) => r.id);
 }
 
+// A session's (s) rig (r), projectile (p) and plan (tp, when it has one), joined: what the
+// single-shot statements below read, and check.
+const SESSION_REFERENCES =
+	`JOIN ${tableName(rigs)} r ON ${name(rigs.id, 'r')} = ${name(rangeSessions.rigId, 's')} ` +
+	`JOIN ${tableName(projectiles)} p ON ${name(projectiles.id, 'p')} = ${name(rangeSessions.projectileId, 's')} ` +
+	`LEFT JOIN ${tableName(testPlans)} tp ON ${name(testPlans.id, 'tp')} = ${name(rangeSessions.testPlanId, 's')}`;
+
 // What one shot's prediction reads besides the shot and its session, in one statement that
 // share-locks it (see predictionInputsRead): the rig, the projectile, the plan (when the session
 // has one) and the pair's approved calibration (a row per approved calibration: one, or none),
@@ -429,10 +438,7 @@ export async function sessionIdsOfPair(
 // gap where an approval would put a newly approved row. Written once as text (db/raw.ts).
 const PREDICTION_INPUTS_LOCKED =
 	`SELECT ${selectList(rigs, 'r')}, ${selectList(projectiles, 'p')}, ${selectList(testPlans, 'tp')}, ${selectList(calibrations, 'c')} ` +
-	`FROM ${tableName(rangeSessions)} s ` +
-	`JOIN ${tableName(rigs)} r ON ${name(rigs.id, 'r')} = ${name(rangeSessions.rigId, 's')} ` +
-	`JOIN ${tableName(projectiles)} p ON ${name(projectiles.id, 'p')} = ${name(rangeSessions.projectileId, 's')} ` +
-	`LEFT JOIN ${tableName(testPlans)} tp ON ${name(testPlans.id, 'tp')} = ${name(rangeSessions.testPlanId, 's')} ` +
+	`FROM ${tableName(rangeSessions)} s ${SESSION_REFERENCES} ` +
 	`LEFT JOIN ${tableName(calibrations)} c ON ${name(calibrations.rigId, 'c')} = ${name(rangeSessions.rigId, 's')} AND ${name(calibrations.projectileId, 'c')} = ${name(rangeSessions.projectileId, 's')} ` +
 	`AND ${name(calibrations.status, 'c')} = 'approved' ` +
 	`WHERE ${name(rangeSessions.id, 's')} = ? LOCK IN SHARE MODE`;
@@ -490,8 +496,7 @@ export function predictNewShot(shot: PredictedShot, session: RangeSessionRow, in
 // prediction itself, or will. A plain INSERT: should an approval or an edit have written this
 // shot's prediction first, it fails on the key rather than overwrite theirs.
 const INSERT_PREDICTION_IF_SESSION_UNCHANGED =
-	`INSERT INTO ${tableName(shotPredictions)} (${WRITTEN_NAMES.map((n) => `\`${n}\``).join(', ')}) ` +
-	`SELECT ${WRITTEN_NAMES.map(() => '?').join(', ')} FROM ${tableName(rangeSessions)} s ` +
+	`${INSERT_INTO_PREDICTIONS} SELECT ${WRITTEN_NAMES.map(() => '?').join(', ')} FROM ${tableName(rangeSessions)} s ` +
 	`WHERE ${name(rangeSessions.id, 's')} = ? AND ${name(rangeSessions.updatedAt, 's')} = ?`;
 
 /**
@@ -547,15 +552,11 @@ export const INSERTED_SHOT_ID_VARIABLE = '@inserted_shot_id';
 // what MariaDB holds now (the batch has locked it): the session, rig, projectile and plan rows
 // unchanged since, and the same approved calibration. Otherwise it writes nothing.
 const INSERT_PREDICTION_IF_INPUTS_UNCHANGED =
-	`INSERT INTO ${tableName(shotPredictions)} (${WRITTEN_NAMES.map((n) => `\`${n}\``).join(', ')}) ` +
-	`SELECT ${name(shots.id, 'sh')}, ${WRITTEN_NAMES.slice(1)
+	`${INSERT_INTO_PREDICTIONS} SELECT ${name(shots.id, 'sh')}, ${WRITTEN_NAMES.slice(1)
 		.map(() => '?')
 		.join(', ')} ` +
 	`FROM ${tableName(shots)} sh ` +
-	`JOIN ${tableName(rangeSessions)} s ON ${name(rangeSessions.id, 's')} = ${name(shots.sessionId, 'sh')} ` +
-	`JOIN ${tableName(rigs)} r ON ${name(rigs.id, 'r')} = ${name(rangeSessions.rigId, 's')} ` +
-	`JOIN ${tableName(projectiles)} p ON ${name(projectiles.id, 'p')} = ${name(rangeSessions.projectileId, 's')} ` +
-	`LEFT JOIN ${tableName(testPlans)} tp ON ${name(testPlans.id, 'tp')} = ${name(rangeSessions.testPlanId, 's')} ` +
+	`JOIN ${tableName(rangeSessions)} s ON ${name(rangeSessions.id, 's')} = ${name(shots.sessionId, 'sh')} ${SESSION_REFERENCES} ` +
 	`WHERE ${name(shots.id, 'sh')} = ${INSERTED_SHOT_ID_VARIABLE} AND ${name(shots.clientUuid, 'sh')} = ? ` +
 	`AND ${name(rangeSessions.updatedAt, 's')} = ? AND ${name(rigs.updatedAt, 'r')} = ? AND ${name(projectiles.updatedAt, 'p')} = ? ` +
 	`AND ${name(testPlans.updatedAt, 'tp')} <=> ? ` +
