@@ -69,7 +69,9 @@ describe('set-up faults end in one clear message', () => {
 		const other = mkdtempSync(path.join(os.tmpdir(), 'shotwright-checkout-'));
 		cpSync(path.join(ROOT, 'scripts'), path.join(other, 'scripts'), { recursive: true });
 		copyFileSync(path.join(ROOT, 'package-lock.json'), path.join(other, 'package-lock.json'));
-		const lockTime = statSync(path.join(ROOT, 'node_modules', '.package-lock.json')).mtime;
+		// Older than the installed marker, so the copy does not reinstall: a second earlier, as
+		// setting it to the marker's own time can round a fraction of a millisecond past it.
+		const lockTime = new Date(statSync(path.join(ROOT, 'node_modules', '.package-lock.json')).mtimeMs - 1000);
 		utimesSync(path.join(other, 'package-lock.json'), lockTime, lockTime);
 		symlinkSync(path.join(ROOT, 'node_modules'), path.join(other, 'node_modules'));
 		mkdirSync(path.join(other, '.svelte-kit'));
