@@ -4,8 +4,8 @@
 // through the same prediction path as the fit (simulateCampaign), so each fit is also checked
 // against the truth. Prints a markdown table.
 
-import { fitLauncher, type CalibrationShot, type LauncherFitResult, type MeasurementSds } from '../../src/lib/physics/fit/launcher';
-import { simulateCampaign, type SyntheticCampaign } from '../../src/lib/physics/fit/synthetic';
+import { fitLauncher, type CalibrationShot, type LauncherFitResult, type MeasurementSds } from '../../src/lib/physics/launcher';
+import { simulateCampaign, type SyntheticCampaign } from '../../src/lib/physics/launcher/synthetic';
 
 const TRUTH = { efficiency: 0.62, pressureSlope: 0, pRefPa: 5e5, lossN: 0, dragCoefficient: 0.5, elevationBiasDeg: 0.3 };
 const NOISE: MeasurementSds = { speedMps: 0.3, pressurePa: 2000, impactM: 0.01 };

@@ -5,7 +5,7 @@ import { and, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { isHttpError } from '@sveltejs/kit';
 import { prefsFor } from '../../src/lib/format';
-import { predictShot } from '../../src/lib/physics/fit/launcher';
+import { predictShot } from '../../src/lib/physics/launcher';
 import { seedDemo } from '../../src/lib/server/db/seed';
 import { projectiles, rangeSessions, rigs, testPlans, users } from '../../src/lib/server/db/schema';
 import { approveCalibration, calibrationInForce, fitCalibration, ReconcileError } from '../../src/lib/server/reconcile';

@@ -10,7 +10,7 @@ import { linearRegression, mean, sampleStandardDeviation } from 'simple-statisti
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { airDensity } from '../../src/lib/physics/air';
 import { flyToPlane } from '../../src/lib/physics/flight/driver';
-import { predictShot, type CalibrationParameters, type LauncherCalibration } from '../../src/lib/physics/fit/launcher';
+import { predictShot, type CalibrationParameters, type LauncherCalibration } from '../../src/lib/physics/launcher';
 import { createRandom } from '../../src/lib/physics/random';
 import {
 	auditEvents,
@@ -58,7 +58,7 @@ const RIG = {
 };
 const BALL = { name: 'IT ball 25 mm', massKg: 7.53e-3, diameterM: 0.025, lengthM: 0.025, shape: 'sphere' as const, nominalDragCoefficient: 0.4 };
 const PROXY = { name: 'IT proxy', massKg: 7.53e-3, diameterM: 0.025, lengthM: 0.025, shape: 'sphere' as const, nominalDragCoefficient: 0.47 };
-const TRUTH: CalibrationParameters = { efficiency: 0.64, pressureSlope: 0, pRefPa: 2e5, lossN: 0, dragCoefficient: 0.5, elevationBiasDeg: 0.15 };
+const TRUTH: CalibrationParameters = { efficiency: 0.64, pressureSlope: 0, pRefPa: 2e5, energyOffsetJ: 0, valveAreaM2: 1e-4, openingTimeS: 0.01, frictionN: 0, dragCoefficient: 0.5, elevationBiasDeg: 0.15 };
 const truthModel: LauncherCalibration = { parameters: TRUTH, fitted: [], identifiable: [], covariance: [], fillPressureRangePa: { min: 0, max: Infinity } };
 /** Noise of the simulated instruments and rig. */
 const NOISE = { speedMps: 0.1, pressurePa: 300, impactM: 0.004 };

@@ -1,7 +1,7 @@
 import { errorFunction } from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
 import { chanceOfMeetingPlan } from './chance';
-import { predictShot, type LauncherCalibration, type ShotSetup } from './fit/launcher';
+import { predictShot, type LauncherCalibration, type ShotSetup } from './launcher';
 
 const setupBase: ShotSetup = {
 	rig: { reservoirM3: 1e-3, deadM3: 0, boreDiameterM: 0.025, travelM: 1 },
@@ -23,7 +23,10 @@ function calibration(covariance: number[][]): LauncherCalibration {
 			efficiency: 0.62,
 			pressureSlope: 0,
 			pRefPa: 5e5,
-			lossN: 0,
+			energyOffsetJ: 0,
+			valveAreaM2: 1e-4,
+			openingTimeS: 0.01,
+			frictionN: 0,
 			dragCoefficient: 0.5,
 			elevationBiasDeg: 0.3
 		},

@@ -24,7 +24,7 @@ import {
 	type ParameterName,
 	type ShotPrediction,
 	type ShotSetup
-} from './fit/launcher';
+} from './launcher';
 import { createRandom } from './random';
 
 export interface PlanRequirements {

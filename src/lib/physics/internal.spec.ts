@@ -92,6 +92,13 @@ describe('muzzleSpeed — launcher example (reference §1, computed)', () => {
 		expectRounded(speed(muzzleSpeed({ ...LAUNCHER, fillGaugePa: 6e5 - 101325 })), 131.042, 3);
 	});
 
+	it('a negative energy term (E/L < 0) adds |E| to the kinetic energy (physics.md §1: E has either sign)', () => {
+		const base = muzzleSpeed(LAUNCHER);
+		const r = muzzleSpeed({ ...LAUNCHER, lossN: -20 });
+		if (!base.ok || !r.ok) throw new Error('expected both to leave the barrel');
+		expect(r.kineticEnergyJ - base.kineticEnergyJ).toBeCloseTo(20 * LAUNCHER.travelM, 9);
+	});
+
 	it('friction: a loss force F takes F·L out of the kinetic energy', () => {
 		const r = muzzleSpeed({ ...LAUNCHER, lossN: 20 });
 		expect(r.ok).toBe(true);
@@ -184,7 +191,8 @@ describe('muzzleSpeed — bad input is a PhysicsInputError naming the field', ()
 		['fillGaugePa', { fillGaugePa: Number.POSITIVE_INFINITY }],
 		['fillGaugePa', { fillGaugePa: -1 }],
 		['ambientPa', { ambientPa: 0 }],
-		['lossN', { lossN: -1 }],
+		['lossN', { lossN: Number.NaN }],
+		['lossN', { lossN: -2e7 }],
 		['polytropicIndex', { polytropicIndex: 0.9 }],
 		['gasInertia.gasTemperatureK', { gasInertia: { gasTemperatureK: -10 } }]
 	];

@@ -62,7 +62,10 @@ export interface MuzzleSpeedInput {
 	massKg: number;
 	/** Fitted efficiency η, 0 < η ≤ 1 (use efficiencyAt for a pressure-dependent η). */
 	efficiency: number;
-	/** Constant friction force along the barrel, N; default 0. */
+	/**
+	 * The energy term E spread over the travel, E/L, N; default 0. Either sign (physics.md §1):
+	 * positive is friction-like loss, negative means the simple expansion under-states the work.
+	 */
 	lossN?: number;
 	/** Polytropic index n; default 1.4 (adiabatic air), 1 = isothermal. */
 	polytropicIndex?: number;
@@ -85,7 +88,7 @@ export type MuzzleSpeedResult =
 			gasWorkJ: number;
 			/** Work pushing the outside air out of the barrel, J. */
 			atmosphereWorkJ: number;
-			/** Work against the loss force, F L, J. */
+			/** The energy term E = (E/L)·L, J (either sign). */
 			lossWorkJ: number;
 			kineticEnergyJ: number;
 			/** m, or m + C/3 with the gas-inertia correction, kg. */
@@ -114,7 +117,7 @@ function launcher(i: LauncherInput): Launcher {
 	const travel = positiveUpTo(i.travelM, 'travelM', LAUNCHER_LIMITS.lengthM);
 	const massKg = positiveUpTo(i.massKg, 'massKg', LAUNCHER_LIMITS.massKg);
 	const efficiency = requireInRange(i.efficiency, 'efficiency', EFFICIENCY_RANGE);
-	const lossN = requireInRange(i.lossN ?? 0, 'lossN', { min: 0, max: LAUNCHER_LIMITS.forceN });
+	const lossN = requireInRange(i.lossN ?? 0, 'lossN', { min: -LAUNCHER_LIMITS.forceN, max: LAUNCHER_LIMITS.forceN });
 	const n = requireInRange(i.polytropicIndex ?? AIR_POLYTROPIC_INDEX, 'polytropicIndex', POLYTROPIC_INDEX_RANGE);
 	const sweptM3 = ((Math.PI * bore * bore) / 4) * travel;
 	const startVolumeM3 = reservoir + dead;
@@ -185,7 +188,7 @@ export function muzzleSpeed(i: MuzzleSpeedInput): MuzzleSpeedResult {
 			reason:
 				`The projectile does not leave the barrel: η·W_gas = ${(L.efficiency * gasWorkJ).toFixed(3)} J ` +
 				`does not exceed the work against the outside air (${L.atmosphereWorkJ.toFixed(3)} J)` +
-				` and friction (${L.lossWorkJ.toFixed(3)} J).`
+				` and the energy term (${L.lossWorkJ.toFixed(3)} J).`
 		};
 	}
 	const effectiveMassKg = L.massKg + gasMassKg(L, absolutePa) / 3;

@@ -3,7 +3,10 @@
 // action (server). The efficiency η0 is always fitted, so it is not a choice here.
 import { z } from 'zod';
 
-export const OPTIONAL_PARAMETERS = ['pressureSlope', 'lossForce', 'dragCoefficient', 'elevationBias'] as const;
+export const OPTIONAL_PARAMETERS = ['pressureSlope', 'energyOffset', 'dragCoefficient', 'elevationBias'] as const;
+/** 'auto': every candidate model, compared by held-out error (physics.md §5); or one family. */
+export const MODEL_CHOICES = ['auto', 'gas-work', 'valve-flow'] as const;
+export const DRAG_LAWS = ['constant', 'sphere'] as const;
 export type OptionalParameter = (typeof OPTIONAL_PARAMETERS)[number];
 
 /** calibration_exclusions.reason is VARCHAR(500). */
@@ -33,6 +36,8 @@ export const fitCalibrationInput = z
 			.array(z.number().int().positive())
 			.min(1, 'Choose at least one range session to fit.')
 			.max(500, 'Fit at most 500 sessions at once.'),
+		model: z.enum(MODEL_CHOICES, { error: 'Choose automatic, gas work or valve flow.' }).default('auto'),
+		drag: z.enum(DRAG_LAWS, { error: 'Choose a constant C_D or the sphere correlation.' }).default('constant'),
 		parameters: z.array(z.enum(OPTIONAL_PARAMETERS, { error: 'Unknown parameter.' })).default([]),
 		exclusions: z.array(exclusionInput).max(5000, 'Exclude at most 5000 shots.').default([]),
 		notes: z.string().trim().max(4000, 'Notes are at most 4000 characters.').nullish()

@@ -138,18 +138,25 @@ const setupPrediction = z.object({
 		status: z.enum(['calibrated', 'uncalibrated']),
 		calibrationId: z.int().nullable(),
 		approvedAt: dateTime.nullable(),
+		model: z.object({
+			family: z.enum(['gas-work', 'valve-flow']),
+			drag: z.enum(['constant', 'sphere']).meta({ description: 'constant: dragCoefficient is C_D; sphere: it is a factor on the Morrison sphere correlation C_D(Re).' })
+		}),
 		parameters: z.object({
-			efficiency: z.number(),
-			pressureSlope: z.number().meta({ unit: '1/Pa' }),
+			efficiency: z.number().meta({ description: 'η0 (gas work), dimensionless.' }),
+			pressureSlope: z.number().meta({ description: 'η1, dimensionless: change of η per relative change of fill pressure from pRefPa.' }),
 			pRefPa: z.number().meta({ unit: 'Pa' }),
-			lossN: z.number().meta({ unit: 'N' }),
+			energyOffsetJ: z.number().meta({ unit: 'J', description: 'Energy term E of the gas-work family, either sign.' }),
+			valveAreaM2: z.number().meta({ unit: 'm²', description: 'Effective valve area C·A_v (valve flow).' }),
+			openingTimeS: z.number().meta({ unit: 's', description: 'Valve opening time τ (valve flow).' }),
+			frictionN: z.number().meta({ unit: 'N', description: 'Friction in the bore (valve flow).' }),
 			dragCoefficient: z.number(),
 			elevationBiasDeg: z.number().meta({ unit: '°' })
 		}),
 		note: z.string()
 	}),
 	airDensityKgM3: z.number().meta({ unit: 'kg/m³' }),
-	efficiency: z.number(),
+	efficiency: z.number().nullable(),
 	muzzleSpeedMps: z.number().meta({ unit: 'm/s' }),
 	downrange: z.object({ distanceM: z.number().meta({ unit: 'm' }), speedMps: z.number().meta({ unit: 'm/s' }) }).nullable(),
 	target: z.object({

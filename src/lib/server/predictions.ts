@@ -3,7 +3,15 @@
 // that predicts logged shots — under the calibration in force for a registry pair, or the
 // nominal efficiency and drag coefficient otherwise, clearly marked uncalibrated.
 import { airDensity } from '$lib/physics/air';
-import { predictShot, type LauncherCalibration, type LauncherRig, type Projectile } from '$lib/physics/fit/launcher';
+import {
+	modelOf,
+	predictShot,
+	type CalibrationParameters,
+	type LauncherCalibration,
+	type LauncherModel,
+	type LauncherRig,
+	type Projectile
+} from '$lib/physics/launcher';
 import type { PredictionInput } from '$lib/schemas/prediction';
 import { db } from './db';
 import { calibrationInForce } from './reconcile';
@@ -30,7 +38,9 @@ export type CalibrationUsed = {
 	status: 'calibrated' | 'uncalibrated';
 	calibrationId: number | null;
 	approvedAt: Date | null;
-	parameters: { efficiency: number; pressureSlope: number; pRefPa: number; lossN: number; dragCoefficient: number; elevationBiasDeg: number };
+	/** Family and drag law of the model used. */
+	model: LauncherModel;
+	parameters: CalibrationParameters;
 	note: string;
 };
 
@@ -39,8 +49,8 @@ export type SetupPrediction = {
 	projectile: { id: number | null; name: string | null };
 	calibration: CalibrationUsed;
 	airDensityKgM3: number;
-	/** Efficiency at this fill pressure. */
-	efficiency: number;
+	/** Efficiency at this fill pressure (gas-work family; null for valve flow). */
+	efficiency: number | null;
 	muzzleSpeedMps: number;
 	/** At the downrange chronograph, when the setup names one and the projectile reaches it. */
 	downrange: { distanceM: number; speedMps: number } | null;
@@ -82,6 +92,7 @@ export async function predictSetup(input: PredictionInput): Promise<SetupPredict
 			status: inForce.uncalibrated ? 'uncalibrated' : 'calibrated',
 			calibrationId: inForce.calibrationId,
 			approvedAt: inForce.approvedAt,
+			model: modelOf(model),
 			parameters: { ...model.parameters },
 			note: inForce.uncalibrated ? `${UNCALIBRATED_NOTE} No calibration of this pair is approved yet.` : `Calibration ${inForce.calibrationId}, approved for this rig and projectile.`
 		};
@@ -91,6 +102,7 @@ export async function predictSetup(input: PredictionInput): Promise<SetupPredict
 			status: 'uncalibrated',
 			calibrationId: null,
 			approvedAt: null,
+			model: modelOf(model),
 			parameters: { ...model.parameters },
 			note: `${UNCALIBRATED_NOTE} Calibrations belong to a registry pair; give rigId and projectileId to use one.`
 		};
@@ -110,6 +122,7 @@ export async function predictSetup(input: PredictionInput): Promise<SetupPredict
 				aimHeightM: input.aimHeightM,
 				airDensityKgM3,
 				ambientPa: input.pressurePa,
+				temperatureC: input.temperatureC,
 				wind: { xMps: input.windXMps, zMps: input.windZMps }
 			},
 			fillGaugePa: input.fillGaugePa

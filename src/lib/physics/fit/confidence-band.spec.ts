@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { muzzleSpeed } from '../internal';
 import { createRandom } from '../random';
 import { deltaMethod, evenlySpaced, modelMuzzleSpeed, muzzleSpeedBand, type CurveLauncher } from './confidence-band';
-import type { LauncherCalibration } from './launcher';
+import type { LauncherCalibration } from '../launcher';
 
 const launcher: CurveLauncher = {
 	rig: { reservoirM3: 2e-3, deadM3: 0.05e-3, boreDiameterM: 0.0254, travelM: 1.2 },
@@ -12,7 +12,7 @@ const launcher: CurveLauncher = {
 
 function calibration(fitted: LauncherCalibration['fitted'], covariance: (number | null)[][]): LauncherCalibration {
 	return {
-		parameters: { efficiency: 0.62, pressureSlope: -0.03, pRefPa: 2e5, lossN: 1.5, dragCoefficient: 0.5, elevationBiasDeg: 0 },
+		parameters: { efficiency: 0.62, pressureSlope: -0.03, pRefPa: 2e5, energyOffsetJ: 1.5, valveAreaM2: 1e-4, openingTimeS: 0.01, frictionN: 0, dragCoefficient: 0.5, elevationBiasDeg: 0 },
 		fitted,
 		identifiable: fitted.map(() => true),
 		covariance: covariance as number[][],
@@ -54,7 +54,7 @@ describe('deltaMethod', () => {
 describe('muzzleSpeedBand', () => {
 	it('with η0 alone matches the analytic gradient ∂v/∂η = W_gas/(m v) (energy balance, physics.md §1)', () => {
 		const se = 0.004;
-		const cal = { ...calibration(['efficiency'], [[se * se]]), parameters: { ...calibration([], []).parameters, pressureSlope: 0, lossN: 0 } };
+		const cal = { ...calibration(['efficiency'], [[se * se]]), parameters: { ...calibration([], []).parameters, pressureSlope: 0, energyOffsetJ: 0 } };
 		const [point] = muzzleSpeedBand(cal, launcher, [2.5e5], 2).points;
 		const r = muzzleSpeed({ fillGaugePa: 2.5e5, ...launcher.rig, ambientPa: launcher.ambientPa, massKg: launcher.projectile.massKg, efficiency: 0.62 });
 		if (!r.ok) throw new Error('no shot');
@@ -70,7 +70,7 @@ describe('muzzleSpeedBand', () => {
 			[-2e-6, 4e-5, 0],
 			[2e-4, 0, 0.04]
 		];
-		const cal = calibration(['efficiency', 'pressureSlope', 'lossForce'], cov);
+		const cal = calibration(['efficiency', 'pressureSlope', 'energyOffset'], cov);
 		const p = 3e5;
 		const [point] = muzzleSpeedBand(cal, launcher, [p], 1.96).points;
 		// Cholesky of the 3×3 covariance, then N(θ̂, Σ) draws.
@@ -87,7 +87,7 @@ describe('muzzleSpeedBand', () => {
 			const z = [random.normal(), random.normal(), random.normal()];
 			const d = L.map((row) => row.reduce((s, v, k) => s + v * z[k], 0));
 			const v = modelMuzzleSpeed(
-				{ ...cal.parameters, efficiency: 0.62 + d[0], pressureSlope: -0.03 + d[1], lossN: 1.5 + d[2] },
+				{ ...cal.parameters, efficiency: 0.62 + d[0], pressureSlope: -0.03 + d[1], energyOffsetJ: 1.5 + d[2] },
 				launcher,
 				p
 			);
@@ -110,13 +110,13 @@ describe('muzzleSpeedBand', () => {
 	});
 
 	it('skips pressures at which the projectile stays in the barrel and reports parameters without a variance', () => {
-		const cal = calibration(['efficiency', 'lossForce'], [
+		const cal = calibration(['efficiency', 'energyOffset'], [
 			[1e-6, null],
 			[null, null]
 		]);
 		const { points, omitted } = muzzleSpeedBand(cal, launcher, [0, 2e5], 2);
 		expect(points.map((p) => p.fillGaugePa)).toEqual([2e5]);
-		expect(omitted).toEqual(['lossForce']);
+		expect(omitted).toEqual(['energyOffset']);
 	});
 });
 

@@ -7,10 +7,21 @@
 // Regression Analysis and Its Applications, 1988, §2.3, and Seber & Wild, Nonlinear Regression,
 // 1989, §5.1, from memory). The band at each point is f ± t(0.975; n − p)·SE, the same Student-t
 // quantile as the parameters' own 95 % intervals. The gradient is taken numerically by central
-// differences, so the band follows the model exactly as predictShot computes it (η(p), F, the
-// polytropic work), without a second hand-derived formula that could drift from it.
-import { muzzleSpeed } from '../internal';
-import { parameterValue, withParameter, type CalibrationParameters, type LauncherCalibration, type LauncherRig, type ParameterName, type Projectile } from './launcher';
+// differences, so the band follows the model exactly as predictShot computes it (either family), without a second hand-derived formula that could drift from it.
+import {
+	DEFAULT_MODEL,
+	calibratedMuzzleSpeed,
+	modelOf,
+	parameterValue,
+	withParameter,
+	type CalibrationParameters,
+	type LauncherCalibration,
+	type LauncherModel,
+	type LauncherRig,
+	type ParameterName,
+	type Projectile,
+	type ShotSetup
+} from '../launcher/model';
 
 /**
  * Central-difference step per parameter as a fraction of its standard error. The band only needs
@@ -84,27 +95,37 @@ export interface CurveLauncher {
 	projectile: Projectile;
 	/** Barometric pressure the gauge reads against, Pa. */
 	ambientPa: number;
+	/** Air temperature, °C (the valve-flow family's gas temperature). */
+	temperatureC?: number;
 }
 
 /** Muzzle speed under calibration parameters, as predictShot computes it; null if it stays in. */
-export function modelMuzzleSpeed(p: CalibrationParameters, launcher: CurveLauncher, fillGaugePa: number): number | null {
-	// η(p_g) = η0 + η1 (p_g − p_ref)/p_ref (physics.md §1).
-	const efficiency = p.pressureSlope === 0 ? p.efficiency : p.efficiency + (p.pressureSlope * (fillGaugePa - p.pRefPa)) / p.pRefPa;
-	if (!(efficiency > 0 && efficiency <= 1) || !(p.lossN >= 0)) return null;
-	const r = muzzleSpeed({
-		fillGaugePa,
-		ambientPa: launcher.ambientPa,
-		reservoirM3: launcher.rig.reservoirM3,
-		deadM3: launcher.rig.deadM3,
-		boreDiameterM: launcher.rig.boreDiameterM,
-		travelM: launcher.rig.travelM,
-		massKg: launcher.projectile.massKg,
-		efficiency,
-		lossN: p.lossN,
-		polytropicIndex: launcher.rig.polytropicIndex,
-		gasInertia: launcher.rig.gasInertia
-	});
+export function modelMuzzleSpeed(
+	p: CalibrationParameters,
+	launcher: CurveLauncher,
+	fillGaugePa: number,
+	model: LauncherModel = DEFAULT_MODEL
+): number | null {
+	const r = calibratedMuzzleSpeed(model, p, curveSetup(launcher, fillGaugePa), fillGaugePa);
 	return r.ok ? r.speedMps : null;
+}
+
+/** A setup for the muzzle speed alone (no flight: the range fields are not read). */
+function curveSetup(launcher: CurveLauncher, fillGaugePa: number): ShotSetup {
+	return {
+		rig: launcher.rig,
+		projectile: launcher.projectile,
+		fillGaugePa,
+		session: {
+			targetDistanceM: 1,
+			elevationDeg: 0,
+			launchHeightM: 0,
+			aimHeightM: 0,
+			airDensityKgM3: 1.2,
+			ambientPa: launcher.ambientPa,
+			temperatureC: launcher.temperatureC
+		}
+	};
 }
 
 export interface BandPoint {
@@ -141,7 +162,7 @@ export function muzzleSpeedBand(
 		const f = (x: number[]) => {
 			let p = calibration.parameters;
 			names.forEach((n, j) => (p = withParameter(p, n, x[j])));
-			return modelMuzzleSpeed(p, launcher, fillGaugePa);
+			return modelMuzzleSpeed(p, launcher, fillGaugePa, modelOf(calibration));
 		};
 		const r = deltaMethod(f, theta, calibration.covariance);
 		if (!r) continue;

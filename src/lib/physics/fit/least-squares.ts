@@ -123,16 +123,16 @@ const NULL_COMPONENT_THRESHOLD = 1e-4;
 const DWARF = Number.MIN_VALUE;
 
 const MESSAGES: Record<LeastSquaresStatus, string> = {
-	ftol: 'converged: actual and predicted relative reductions in the sum of squares are at most ftol',
-	xtol: 'converged: relative change between two consecutive iterates is at most xtol',
-	'ftol+xtol': 'converged: both the ftol and the xtol tests are met',
-	gtol: 'converged: the residual vector is orthogonal to the Jacobian columns within gtol',
-	'ftol-machine': 'converged to machine precision: no further reduction in the sum of squares is possible',
-	'xtol-machine': 'converged to machine precision: no further improvement of the parameters is possible',
-	'gtol-machine': 'converged to machine precision: the residuals are orthogonal to the Jacobian columns',
-	'max-evaluations': 'not converged: the number of residual evaluations reached maxEvaluations',
-	'invalid-start': 'not started: the residuals are not finite at the starting point',
-	'invalid-jacobian': 'stopped: the Jacobian is not finite'
+	ftol: 'settled: further steps no longer shrink the sum of squared residuals',
+	xtol: 'settled: further steps no longer move the parameters',
+	'ftol+xtol': 'settled: further steps move neither the parameters nor the sum of squared residuals',
+	gtol: 'settled: the residuals no longer point along any parameter direction',
+	'ftol-machine': 'settled at the limit of arithmetic precision: the sum of squared residuals cannot shrink further',
+	'xtol-machine': 'settled at the limit of arithmetic precision: the parameters cannot move further',
+	'gtol-machine': 'settled at the limit of arithmetic precision: the residuals no longer point along any parameter direction',
+	'max-evaluations': 'stopped unsettled: the allowed number of model evaluations ran out',
+	'invalid-start': 'not started: the model cannot be evaluated at the starting values (a residual is not a finite number)',
+	'invalid-jacobian': 'stopped: a derivative of the model is not a finite number'
 };
 
 /** The plain-words meaning of a termination status (the start of `message`). */

@@ -1,5 +1,7 @@
 // The flight driver: validates a shot, integrates the model of ./model with DOP853 under
-// step-size control, and stops at the first event (./events). Public entry points:
+// step-size control, and stops at the first event (./events). The drag law picks the model: a
+// constant C_D (FlightModel) or a factor on the Morrison sphere correlation C_D(Re)
+// (SphereDragFlightModel). Public entry points:
 //   flyToPlane(f)            where and how fast the projectile meets the target plane x = D
 //   flightPath(f, {samples}) the same flight sampled evenly in time, for plots
 // (shared/design/physics.md §3; reference sheet §5.)
@@ -8,7 +10,21 @@ import { PhysicsInputError, requireInRange, requireNonNegative, requirePositive 
 import { toSI } from '../units';
 import { errorNorm, initialStep, stepFactor, MIN_FACTOR, type Tolerances } from './control';
 import { crossesGround, crossesPlane, locateEvent } from './events';
-import { dragFactor, FlightModel, STANDARD_GRAVITY_MPS2, STATE_SIZE, VX, VY, VZ, X, Y, Z } from './model';
+import {
+	dragFactor,
+	FlightModel,
+	SphereDragFlightModel,
+	STANDARD_GRAVITY_MPS2,
+	STATE_SIZE,
+	stokesDragRate,
+	VX,
+	VY,
+	VZ,
+	X,
+	Y,
+	Z,
+	type FlightSystem
+} from './model';
 import { denseOutput, interpolateState, rungeKuttaStep, StepWork } from './stepper';
 import { DOP853 } from './tableau';
 
@@ -34,7 +50,9 @@ const FLIGHT_LIMITS = {
 	windMps: { min: -200, max: 200 },
 	gravityMps2: { min: 0, max: 100 },
 	lengthM: { min: 0, max: 100_000 },
-	targetDistanceM: { min: 0, max: 100_000, minExclusive: true }
+	targetDistanceM: { min: 0, max: 100_000, minExclusive: true },
+	/** Air is ≈ 1.8e-5 Pa·s; any gas at any range temperature is within 1e-6..1e-4. */
+	viscosityPaS: { min: 1e-7, max: 1 }
 } as const;
 /** Largest number of points a path for plotting may ask for. */
 const MAX_PATH_SAMPLES = 10_000;
@@ -59,12 +77,34 @@ export interface FlightInput {
 	targetDistanceM: number;
 	massKg: number;
 	diameterM: number;
+	/**
+	 * Without `dragLaw`: the drag coefficient C_D, constant over the flight. With
+	 * `dragLaw: { kind: 'sphere' }`: a dimensionless factor on the published sphere correlation
+	 * (C_D = dragCoefficient × C_D,sphere(Re); 1 = a smooth sphere as Morrison's correlation has it).
+	 */
 	dragCoefficient: number;
 	airDensityKgM3: number;
+	/**
+	 * How C_D varies along the flight. Absent: constant, C_D = dragCoefficient. 'sphere': at each
+	 * instant C_D = dragCoefficient × sphereDragCoefficient(Re) (Morrison 2013/16, ../drag), with
+	 * Re = ρ |v − w| d / μ from this viscosity (e.g. sutherlandViscosity of the air temperature).
+	 */
+	dragLaw?: SphereDragLaw;
 	/** Wind, m/s: xMps > 0 a tail wind, zMps > 0 blowing to the right. Default still air. */
 	wind?: { xMps: number; zMps: number };
 	/** Default standard gravity 9.806 65 m/s². */
 	gravityMps2?: number;
+}
+
+/**
+ * The Reynolds-dependent drag law of a smooth sphere (shared/design/physics.md §3). Its drag does
+ * not vanish with the air density: as Re → 0 it tends to Stokes drag 3πμd|v − w|, which depends on
+ * μ alone; a drag-free flight under this law is dragCoefficient = 0.
+ */
+export interface SphereDragLaw {
+	kind: 'sphere';
+	/** Dynamic viscosity μ of the air, Pa·s (≈ 1.81e-5 at 20 °C; sutherlandViscosity). */
+	dynamicViscosityPaS: number;
 }
 
 /**
@@ -100,7 +140,7 @@ export interface FlightOptions {
 }
 
 interface FlightProblem {
-	model: FlightModel;
+	model: FlightSystem;
 	/** Launch state: height (m) and velocity components (m/s); x = z = 0. */
 	launch: { heightM: number; vx: number; vy: number; vz: number };
 	targetX: number;
@@ -114,18 +154,29 @@ function flightProblem(f: FlightInput, options: FlightOptions): FlightProblem {
 	const speed = requireInRange(f.speedMps, 'speedMps', FLIGHT_LIMITS.speedMps);
 	const elevation = toSI('angle', 'deg', requireInRange(f.elevationDeg, 'elevationDeg', { min: -90, max: 90 }));
 	const azimuth = toSI('angle', 'deg', requireInRange(f.azimuthDeg ?? 0, 'azimuthDeg', { min: -180, max: 180 }));
-	const k = dragFactor(
-		requireNonNegative(f.airDensityKgM3, 'airDensityKgM3'),
-		requireNonNegative(f.dragCoefficient, 'dragCoefficient'),
-		requirePositive(f.diameterM, 'diameterM'),
-		requirePositive(f.massKg, 'massKg')
-	);
-	const model = new FlightModel(
-		k,
-		requireInRange(f.wind?.xMps ?? 0, 'wind.xMps', FLIGHT_LIMITS.windMps),
-		requireInRange(f.wind?.zMps ?? 0, 'wind.zMps', FLIGHT_LIMITS.windMps),
-		requireInRange(f.gravityMps2 ?? STANDARD_GRAVITY_MPS2, 'gravityMps2', FLIGHT_LIMITS.gravityMps2)
-	);
+	const density = requireNonNegative(f.airDensityKgM3, 'airDensityKgM3');
+	const dragCoefficient = requireNonNegative(f.dragCoefficient, 'dragCoefficient');
+	const diameter = requirePositive(f.diameterM, 'diameterM');
+	const mass = requirePositive(f.massKg, 'massKg');
+	const windX = requireInRange(f.wind?.xMps ?? 0, 'wind.xMps', FLIGHT_LIMITS.windMps);
+	const windZ = requireInRange(f.wind?.zMps ?? 0, 'wind.zMps', FLIGHT_LIMITS.windMps);
+	const gravity = requireInRange(f.gravityMps2 ?? STANDARD_GRAVITY_MPS2, 'gravityMps2', FLIGHT_LIMITS.gravityMps2);
+	let model: FlightSystem;
+	if (!f.dragLaw) {
+		model = new FlightModel(dragFactor(density, dragCoefficient, diameter, mass), windX, windZ, gravity);
+	} else if (f.dragLaw.kind === 'sphere') {
+		const mu = requireInRange(f.dragLaw.dynamicViscosityPaS, 'dragLaw.dynamicViscosityPaS', FLIGHT_LIMITS.viscosityPaS);
+		model = new SphereDragFlightModel(
+			stokesDragRate(dragCoefficient, mu, diameter, mass),
+			(density * diameter) / mu,
+			windX,
+			windZ,
+			gravity
+		);
+	} else {
+		const kind = String((f.dragLaw as { kind?: unknown }).kind);
+		throw new PhysicsInputError('dragLaw.kind', 'out-of-range', `dragLaw.kind must be 'sphere' (got ${kind})`);
+	}
 	return {
 		model,
 		launch: {
@@ -143,10 +194,10 @@ function flightProblem(f: FlightInput, options: FlightOptions): FlightProblem {
 }
 
 /**
- * Moving upwind or not at all with no tail wind: dv_x/dt = −k|v−w|(v_x − w_x) then keeps v_x at
- * or below max(v_x, w_x) ≤ 0 for good, so x never grows again.
+ * Moving upwind or not at all with no tail wind: dv_x/dt = −k|v−w|(v_x − w_x), k ≥ 0 under
+ * either drag law, then keeps v_x at or below max(v_x, w_x) ≤ 0 for good, so x never grows again.
  */
-function stalled(y: Float64Array, model: FlightModel): boolean {
+function stalled(y: Float64Array, model: FlightSystem): boolean {
 	return y[VX] <= 0 && model.windX <= 0;
 }
 

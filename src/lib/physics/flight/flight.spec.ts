@@ -2,8 +2,10 @@ import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
+import { sphereDragCoefficient, sutherlandViscosity } from '../drag';
 import { PhysicsInputError } from '../errors';
 import { createRandom } from '../random';
+import { brentRoot } from '../roots';
 import { flightPath, flyToPlane, type FlightInput, type FlightResult } from './driver';
 import { dragFactor, STANDARD_GRAVITY_MPS2 as G } from './model';
 
@@ -171,9 +173,21 @@ interface OdexSolver {
 }
 const { Solver } = createRequire(import.meta.url)('odex') as { Solver: new (n: number) => OdexSolver };
 
+/**
+ * k(|v − w|) · |v − w|, 1/s, written from the drag equation F = ½ ρ C_D A |v_rel|² of reference
+ * sheet §4 with C_D either the constant or, under the sphere law, factor × Morrison's C_D(Re),
+ * Re = ρ |v_rel| d / μ (not the C_D·Re force form the flight model uses, so the rewrite is checked).
+ */
+function dragRate(f: FlightInput): (relativeSpeed: number) => number {
+	const k = dragFactor(f.airDensityKgM3, f.dragCoefficient, f.diameterM, f.massKg);
+	const law = f.dragLaw;
+	if (!law) return (u) => k * u;
+	return (u) => k * sphereDragCoefficient((f.airDensityKgM3 * u * f.diameterM) / law.dynamicViscosityPaS) * u;
+}
+
 /** State at time t by ODEX at 1e-13, from the launch state of f. */
 function odexStateAt(f: FlightInput, t: number): number[] {
-	const k = dragFactor(f.airDensityKgM3, f.dragCoefficient, f.diameterM, f.massKg);
+	const kOf = dragRate(f);
 	const wx = f.wind?.xMps ?? 0;
 	const wz = f.wind?.zMps ?? 0;
 	const g = f.gravityMps2 ?? G;
@@ -187,7 +201,7 @@ function odexStateAt(f: FlightInput, t: number): number[] {
 	const rhs = (_t: number, s: number[]) => {
 		const rx = s[3] - wx;
 		const rz = s[5] - wz;
-		const kv = k * Math.sqrt(rx * rx + s[4] * s[4] + rz * rz);
+		const kv = kOf(Math.sqrt(rx * rx + s[4] * s[4] + rz * rz));
 		return [s[3], s[4], s[5], -kv * rx, -kv * s[4] - g, -kv * rz];
 	};
 	const start = [0, f.launchHeightM, 0, v0 * Math.cos(el) * Math.cos(az), v0 * Math.sin(el), v0 * Math.cos(el) * Math.sin(az)];
@@ -300,6 +314,189 @@ describe('flyToPlane — how flights end', () => {
 	});
 });
 
+// ---- The sphere drag law: C_D = dragCoefficient × C_D,Morrison(Re) (physics.md §3; reference §4) ----
+
+/** Air at 20 °C: μ by Sutherland (ICAO Doc 7488 / ISO 2533 form; reference sheet §4). */
+const SPHERE_LAW = { kind: 'sphere', dynamicViscosityPaS: sutherlandViscosity(293.15) } as const;
+const AIR = { airDensityKgM3: 1.2, dragLaw: SPHERE_LAW };
+/** Spheres a hail-impact range fires (ice per IEC 61215-2 MQT 17, 35 mm ≈ 20.7 g; reference sheet §8), and nylon and steel ones. */
+const ICE_35MM = { ...AIR, massKg: 0.02, diameterM: 0.035, dragCoefficient: 1 };
+const NYLON_40MM = { ...AIR, massKg: 0.034, diameterM: 0.04, dragCoefficient: 1.1 };
+const STEEL_20MM = { ...AIR, massKg: 0.033, diameterM: 0.02, dragCoefficient: 0.9 };
+
+const SPHERE_SHOTS: [string, FlightInput][] = [
+	['35 mm 20 g ice sphere at 25 m/s to 6 m (Re ≈ 5.8e4)', { ...ICE_35MM, speedMps: 25, elevationDeg: 4, launchHeightM: 1.5, targetDistanceM: 6 }],
+	['35 mm 20 g ice sphere at 90 m/s to 6 m (Re ≈ 2.1e5)', { ...ICE_35MM, speedMps: 90, elevationDeg: 0.5, launchHeightM: 1.5, targetDistanceM: 6 }],
+	[
+		'40 mm 34 g nylon sphere at 100 m/s to 20 m, wind (−4, +3) m/s (Re ≈ 2.6e5, in the drag crisis)',
+		{ ...NYLON_40MM, speedMps: 100, elevationDeg: 1, azimuthDeg: 1.5, launchHeightM: 1.2, targetDistanceM: 20, wind: { xMps: -4, zMps: 3 } }
+	],
+	['20 mm 33 g steel sphere at 110 m/s to 15 m (Re ≈ 1.5e5)', { ...STEEL_20MM, speedMps: 110, elevationDeg: -1, launchHeightM: 2, targetDistanceM: 15 }],
+	[
+		'35 mm ice sphere lobbed at 40 m/s, 25°, to 150 m in a tail and cross wind: comes down short',
+		{ ...ICE_35MM, speedMps: 40, elevationDeg: 25, launchHeightM: 1.5, targetDistanceM: 150, wind: { xMps: 3, zMps: -2 } }
+	]
+];
+
+/** ODEX's crossing of x = D near tGuess (Newton on x(t) with ẋ = v_x), and its state there. */
+function odexAtPlane(f: FlightInput, tGuess: number): { t: number; s: number[] } {
+	let t = tGuess;
+	let s = odexStateAt(f, t);
+	for (let i = 0; i < 4; i++) {
+		t += (f.targetDistanceM - s[0]) / s[3];
+		s = odexStateAt(f, t);
+	}
+	return { t, s };
+}
+
+describe('flyToPlane, sphere drag law, against ODEX (odex npm: Hairer & Wanner GBS extrapolation, tol 1e-13; Morrison 2013/16 C_D(Re))', () => {
+	for (const [name, f] of SPHERE_SHOTS) {
+		it(`${name}: within 1e-6 m, 1e-7 s, 1e-6 m/s`, () => {
+			const r = flyToPlane(f);
+			expectFinite(r);
+			if (r.reached) {
+				const { t, s } = odexAtPlane(f, r.timeS);
+				expect(Math.abs(s[0] - f.targetDistanceM)).toBeLessThan(1e-12);
+				expect(Math.abs(t - r.timeS)).toBeLessThan(TOL_S);
+				expect(Math.abs(s[1] - r.heightM)).toBeLessThan(TOL_M);
+				expect(Math.abs(s[2] - r.lateralM)).toBeLessThan(TOL_M);
+				expect(Math.abs(Math.hypot(s[3], s[4], s[5]) - r.speedMps)).toBeLessThan(TOL_MPS);
+			} else {
+				expect(r.endedBy).toBe('ground');
+				const s = odexStateAt(f, r.timeS);
+				expect(Math.abs(s[0] - r.downrangeM)).toBeLessThan(TOL_M);
+				expect(Math.abs(s[1])).toBeLessThan(TOL_M);
+				expect(Math.abs(s[2] - r.lateralM)).toBeLessThan(TOL_M);
+				expect(Math.abs(Math.hypot(s[3], s[4], s[5]) - r.speedMps)).toBeLessThan(TOL_MPS);
+			}
+		});
+	}
+
+	it('the law matters: in the drag crisis (Re ≈ 2.6e5, Morrison C_D ≈ 0.26, × 1.1) the sphere law arrives over 5 m/s faster than a constant C_D = 0.47 (reference §4: fit C_D, do not assume it)', () => {
+		const f = SPHERE_SHOTS[2][1];
+		const sphere = flyToPlane(f);
+		const constant = flyToPlane({ ...f, dragLaw: undefined, dragCoefficient: 0.47 });
+		expect(sphere.speedMps - constant.speedMps).toBeGreaterThan(5);
+	});
+});
+
+/**
+ * ∫_a^b f by adaptive Simpson with Richardson's correction (J.N. Lyness, "Notes on the adaptive
+ * Simpson quadrature routine", J. ACM 16 (1969) 483), to an absolute tolerance.
+ */
+function adaptiveSimpson(f: (u: number) => number, a: number, b: number, tolerance: number): number {
+	const step = (a: number, b: number, fa: number, fm: number, fb: number, whole: number, tol: number, depth: number): number => {
+		const m = (a + b) / 2;
+		const flm = f((a + m) / 2);
+		const frm = f((m + b) / 2);
+		const left = ((m - a) / 6) * (fa + 4 * flm + fm);
+		const right = ((b - m) / 6) * (fm + 4 * frm + fb);
+		const delta = left + right - whole;
+		if (depth === 0 || Math.abs(delta) <= 15 * tol) return left + right + delta / 15;
+		return step(a, m, fa, flm, fm, left, tol / 2, depth - 1) + step(m, b, fm, frm, fb, right, tol / 2, depth - 1);
+	};
+	const fa = f(a);
+	const fm = f((a + b) / 2);
+	const fb = f(b);
+	return step(a, b, fa, fm, fb, ((b - a) / 6) * (fa + 4 * fm + fb), tolerance, 40);
+}
+
+describe('flyToPlane, sphere drag law — horizontal drag-only limit by quadrature (reference §5 drag-only case, with k = k(Re))', () => {
+	// g = 0, no wind, level launch: the path is the x axis and m dv/dt = −½ρ C_D(Re) A v², so
+	// dv/dx = −k(v) v and x(v) = ∫_v^v0 du / (k(u) u), t(v) = ∫_v^v0 du / (k(u) u²), with
+	// k(u) = ρ · factor · C_D,Morrison(ρ u d/μ) · A/(2m) (reference sheet §4, §5).
+	const cases: [string, Omit<FlightInput, 'elevationDeg' | 'launchHeightM'>][] = [
+		['35 mm 20 g ice sphere from 90 m/s over 40 m (Re 2.1e5 falling)', { ...ICE_35MM, speedMps: 90, targetDistanceM: 40 }],
+		['40 mm 34 g nylon sphere from 130 m/s over 100 m (Re 3.4e5 → 2.0e5, across the drag crisis: C_D 0.12 → 0.42)', { ...NYLON_40MM, speedMps: 130, targetDistanceM: 100 }],
+		['20 mm 33 g steel sphere from 110 m/s over 100 m', { ...STEEL_20MM, speedMps: 110, targetDistanceM: 100 }],
+		['1 mm 0.52 mg water drop from 3 m/s over 0.5 m (Re 200 → 140, where 24/Re matters)', { ...AIR, massKg: 5.2e-7, diameterM: 0.001, dragCoefficient: 1, speedMps: 3, targetDistanceM: 0.5 }]
+	];
+	for (const [name, shot] of cases) {
+		it(`${name}: x(v) and t(v) by adaptive Simpson (Lyness 1969) agree with the solver to 1e-7 relative`, () => {
+			const f: FlightInput = { ...shot, elevationDeg: 0, launchHeightM: 1, gravityMps2: 0 };
+			const r = flyToPlane(f);
+			expect(r.reached).toBe(true);
+			expect(r.heightM).toBe(1);
+			expect(r.lateralM).toBe(0);
+			const kOf = dragRate(f); // k(u)·u
+			const x = adaptiveSimpson((u) => 1 / kOf(u), r.speedMps, f.speedMps, 1e-12 * f.targetDistanceM);
+			const t = adaptiveSimpson((u) => 1 / (kOf(u) * u), r.speedMps, f.speedMps, 1e-12 * r.timeS);
+			expect(Math.abs(x - f.targetDistanceM) / f.targetDistanceM).toBeLessThan(1e-7);
+			expect(Math.abs(t - r.timeS) / r.timeS).toBeLessThan(1e-7);
+		});
+	}
+
+	it('fall from rest (Re = 0 at launch: the Stokes limit C_D·Re → 24 keeps the force finite) to the terminal speed where weight = drag, g = k(v_t) v_t² (reference §5, v_t = √(g/k) with k = k(Re))', () => {
+		const f: FlightInput = { ...ICE_35MM, speedMps: 0, elevationDeg: 0, launchHeightM: 1000, targetDistanceM: 10 };
+		const kOf = dragRate(f);
+		const terminal = brentRoot((v) => kOf(v) * v - G, 1, 100).root;
+		const r = flyToPlane(f);
+		expectFinite(r);
+		expect(r).toMatchObject({ endedBy: 'stall', heightM: 0, downrangeM: 0 });
+		expect(Math.abs(r.speedMps - terminal)).toBeLessThan(1e-8);
+		// The same fall by ODEX (a different method, the plain C_D(Re) form, which needs Re > 0: it
+		// starts at 1e-12 m/s, a change far below the tolerance): on the ground at the same instant.
+		const s = odexStateAt({ ...f, speedMps: 1e-12, elevationDeg: -90 }, r.timeS);
+		expect(Math.abs(s[1])).toBeLessThan(TOL_M);
+		expect(Math.abs(Math.hypot(s[3], s[4], s[5]) - r.speedMps)).toBeLessThan(TOL_MPS);
+	});
+});
+
+describe('flyToPlane, sphere drag law — robustness and cost', () => {
+	it('never returns NaN over 500 seeded random shots spanning the accepted inputs', () => {
+		const rnd = createRandom(11);
+		const pick = (a: number, b: number) => a + (b - a) * rnd.next();
+		for (let i = 0; i < 500; i++) {
+			const r = flyToPlane({
+				speedMps: pick(0, 400),
+				elevationDeg: pick(-90, 90),
+				azimuthDeg: pick(-180, 180),
+				launchHeightM: rnd.next() < 0.2 ? 0 : pick(0, 50),
+				targetDistanceM: pick(0.01, 500),
+				massKg: 10 ** pick(-5, 1),
+				diameterM: 10 ** pick(-3, -0.5),
+				dragCoefficient: pick(0, 2),
+				airDensityKgM3: pick(0, 1.5),
+				wind: { xMps: pick(-30, 30), zMps: pick(-30, 30) },
+				gravityMps2: rnd.next() < 0.1 ? 0 : G,
+				dragLaw: { kind: 'sphere', dynamicViscosityPaS: 10 ** pick(-6, -3) }
+			});
+			expectFinite(r);
+		}
+	});
+
+	it('flightPath gives the same flight under the sphere law', () => {
+		const f = SPHERE_SHOTS[2][1];
+		const { result, points } = flightPath(f, { samples: 5 });
+		expect({ ...result, evaluations: 0 }).toEqual({ ...flyToPlane(f), evaluations: 0 });
+		expect(points[4]).toMatchObject({ timeS: result.timeS, downrangeM: 20 });
+	});
+
+	it('costs at most about twice the constant-C_D flight (prints flights/s; not asserted)', () => {
+		const constant = randomShots(20240611, 200);
+		const sphere = constant.map((f) => ({ ...f, dragCoefficient: f.dragCoefficient / 0.47, dragLaw: SPHERE_LAW }));
+		const rate = (shots: FlightInput[]) => {
+			let flights = 0;
+			let evaluations = 0;
+			const start = performance.now();
+			while (performance.now() - start < 300) {
+				for (const f of shots) evaluations += flyToPlane(f).evaluations;
+				flights += shots.length;
+			}
+			return { perSecond: flights / ((performance.now() - start) / 1000), evaluations: evaluations / flights };
+		};
+		rate(constant);
+		rate(sphere);
+		const c = rate(constant);
+		const s = rate(sphere);
+		console.log(
+			`flyToPlane: constant C_D ${c.perSecond.toFixed(0)} flights/s (${c.evaluations.toFixed(1)} evaluations/flight), ` +
+				`sphere law ${s.perSecond.toFixed(0)} flights/s (${s.evaluations.toFixed(1)}); cost ratio ${(c.perSecond / s.perSecond).toFixed(2)}`
+		);
+		expect(s.perSecond).toBeGreaterThan(0);
+	});
+});
+
 describe('flightPath', () => {
 	const shot: FlightInput = REFERENCE[0].input;
 
@@ -350,7 +547,10 @@ describe('flyToPlane — bad input is a PhysicsInputError naming the field', () 
 		['wind.xMps', { wind: { xMps: Number.NaN, zMps: 0 } }],
 		['wind.zMps', { wind: { xMps: 0, zMps: Number.NEGATIVE_INFINITY } }],
 		['gravityMps2', { gravityMps2: -9.8 }],
-		['azimuthDeg', { azimuthDeg: Number.NaN }]
+		['azimuthDeg', { azimuthDeg: Number.NaN }],
+		['dragLaw.dynamicViscosityPaS', { dragLaw: { kind: 'sphere', dynamicViscosityPaS: 0 } }],
+		['dragLaw.dynamicViscosityPaS', { dragLaw: { kind: 'sphere', dynamicViscosityPaS: Number.NaN } }],
+		['dragLaw.kind', { dragLaw: { kind: 'cube' } as unknown as FlightInput['dragLaw'] }]
 	];
 	for (const [field, patch] of cases) {
 		it(`${field}: ${label(Object.values(patch)[0])}`, () => {

@@ -25,12 +25,15 @@ export interface ParameterInfo {
 export const PARAMETER_INFO: Record<StoredParameterKey, ParameterInfo> = {
 	eta0: { label: 'Efficiency', symbol: 'η0', quantity: null, meaning: 'share of the ideal gas work that reaches the projectile' },
 	eta1: { label: 'Pressure slope of the efficiency', symbol: 'η1', quantity: null, meaning: 'change of η per relative change of fill pressure from p_ref' },
-	lossN: { label: 'Loss force', symbol: 'F', quantity: 'force', meaning: 'constant friction along the barrel' },
+	energyOffsetJ: { label: 'Energy term', symbol: 'E', quantity: null, meaning: 'energy offset in J: positive is friction-like loss, negative means the simple expansion under-states the work' },
+	valveAreaM2: { label: 'Valve area', symbol: 'C·A_v', quantity: null, meaning: 'effective flow area of the open valve, m²' },
+	openingTimeS: { label: 'Valve opening time', symbol: 'τ', quantity: null, meaning: 'time the valve takes to open fully, s' },
+	frictionN: { label: 'Friction', symbol: 'F', quantity: 'force', meaning: 'constant friction on the projectile in the bore' },
 	dragCoefficient: { label: 'Drag coefficient', symbol: 'C_D', quantity: null, meaning: 'quadratic drag of the projectile in flight' },
 	elevationBiasDeg: { label: 'Elevation bias', symbol: 'δθ', quantity: 'angle', meaning: 'difference between the set and the actual launch elevation' }
 };
 
-export const STORED_KEYS: StoredParameterKey[] = ['eta0', 'eta1', 'lossN', 'dragCoefficient', 'elevationBiasDeg'];
+export const STORED_KEYS: StoredParameterKey[] = ['eta0', 'eta1', 'energyOffsetJ', 'valveAreaM2', 'openingTimeS', 'frictionN', 'dragCoefficient', 'elevationBiasDeg'];
 
 /** What the chosen shots offer, for advice on what is missing. */
 export interface DataOffered {
@@ -49,7 +52,9 @@ export function adviceFor(key: StoredParameterKey, data: DataOffered): string {
 				? 'Add downrange speeds: a second chronograph at a known distance measures the speed the projectile loses to drag. Impacts at a longer target distance help too.'
 				: 'The speed lost between the chronographs is too small to measure the drag: put the second chronograph farther downrange, or add impacts at a longer target distance.';
 		case 'eta1':
-		case 'lossN':
+		case 'energyOffsetJ':
+		case 'openingTimeS':
+		case 'frictionN':
 			return data.distinctFills < 2
 				? `Every shot was filled to the same pressure (${data.fillRangeText}). Fire a sweep over a wider range of fill pressures — from about half to the full working pressure — to tell this term from η0.`
 				: `The fill pressures span only ${data.fillRangeText}. Widen the pressure range of the sweep to tell this term from η0.`;

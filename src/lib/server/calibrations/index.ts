@@ -11,7 +11,7 @@ import { and, asc, count, desc, eq, inArray, isNull, max, sql } from 'drizzle-or
 import { alias } from 'drizzle-orm/mysql-core';
 import { error } from '@sveltejs/kit';
 import { muzzleSpeedBand, evenlySpaced } from '$lib/physics/fit/confidence-band';
-import { predictShot } from '$lib/physics/fit/launcher';
+import { predictShot } from '$lib/physics/launcher';
 import { PhysicsInputError } from '$lib/physics/errors';
 import { studentTQuantile } from '$lib/physics/stats/student-t';
 import { curveRange } from '$lib/components/charts/scales';
@@ -253,12 +253,12 @@ export async function rigCalibrationHistory(tx: Executor, rigId: number): Promis
 /** The fit form's starting values: every session, C_D when some shot has a downrange speed. */
 function defaultFitForm(sessions: PairSession[]): FitCalibrationInput {
 	const withDownrange = sessions.some((s) => s.withDownrangeSpeed > 0);
-	return { sessionIds: sessions.map((s) => s.id), parameters: withDownrange ? ['dragCoefficient'] : [], exclusions: [], notes: null };
+	return { sessionIds: sessions.map((s) => s.id), model: 'auto', drag: 'constant', parameters: withDownrange ? ['dragCoefficient'] : [], exclusions: [], notes: null };
 }
 
 const OPTIONAL_OF_STORED: Partial<Record<string, OptionalParameter>> = {
 	eta1: 'pressureSlope',
-	lossN: 'lossForce',
+	energyOffsetJ: 'energyOffset',
 	dragCoefficient: 'dragCoefficient',
 	elevationBiasDeg: 'elevationBias'
 };
@@ -283,6 +283,9 @@ async function refitForm(
 			exclusions.push({ ...e, reason: '' });
 	return {
 		sessionIds: from.sessionIds.filter((id) => live.has(id)),
+		// A refit keeps the model the stored calibration settled on.
+		model: from.parameters.model?.family ?? 'gas-work',
+		drag: from.parameters.model?.drag ?? 'constant',
 		parameters: from.fitted.flatMap((k) => (OPTIONAL_OF_STORED[k] ? [OPTIONAL_OF_STORED[k]!] : [])),
 		exclusions,
 		notes: null
@@ -393,7 +396,7 @@ async function residualsUnder(tx: Executor, row: CalibrationRow, rig: RigRow, pr
 	const outliers = new Map<number, ResidualKindKey[]>();
 	for (const o of summary.outliers ?? []) outliers.set(o.shotId, [...(outliers.get(o.shotId) ?? []), o.kind]);
 
-	const model = storedModel(row, projectile);
+	const model = storedModel(row, projectile, rig);
 	const conditions = new ConditionsCache();
 	const rigInput = launcherRig(rig);
 	const projectileInput = launcherProjectile(projectile);

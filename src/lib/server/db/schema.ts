@@ -230,11 +230,21 @@ export const shots = mysqlTable(
 	]
 );
 
+/**
+ * A calibration's values (SI). `model` names the family and drag law (absent on calibrations
+ * made before the valve-flow family: gas work, constant C_D). `lossN` is the older loss force
+ * (N), read as the energy term E = lossN · travel.
+ */
 export type CalibrationParameters = {
-	eta0: number;
+	model?: { family: 'gas-work' | 'valve-flow'; drag: 'constant' | 'sphere' };
+	eta0?: number;
 	eta1?: number;
 	pRefPa?: number;
+	energyOffsetJ?: number;
 	lossN?: number;
+	valveAreaM2?: number;
+	openingTimeS?: number;
+	frictionN?: number;
 	dragCoefficient?: number;
 	elevationBiasDeg?: number;
 };

@@ -5,7 +5,7 @@
 // or a tablet logging into the same session cannot hand out the same sequence number.
 import { and, eq, inArray, isNull, sql } from 'drizzle-orm';
 import { hasRole } from '$lib/roles';
-import { predictShot } from '$lib/physics/fit/launcher';
+import { predictShot } from '$lib/physics/launcher';
 import { PhysicsInputError } from '$lib/physics/errors';
 import type { ImportTarget } from '$lib/schemas/imports';
 import { rangeSessions, rigs, shots } from '../db/schema';

@@ -5,14 +5,19 @@
 import { and, asc, desc, eq, inArray } from 'drizzle-orm';
 import { PhysicsInputError } from '$lib/physics/errors';
 import {
+	PARAMETER_FIELD,
+	compareModels,
 	fitLauncher,
 	type CalibrationShot,
+	type DragLaw,
 	type FitLauncherOptions,
+	type LauncherFamily,
 	type LauncherFitResult,
 	type MeasurementSds,
+	type ModelComparison,
 	type ParameterName,
 	type ParameterReport
-} from '$lib/physics/fit/launcher';
+} from '$lib/physics/launcher';
 import { hasRole, type Role } from '$lib/roles';
 import { recordAudit } from '../audit';
 import {
@@ -35,6 +40,7 @@ import {
 	type CalibrationRow,
 	type CalibrationSummary,
 	type Executor,
+	type StoredComparison,
 	type PerKind,
 	type StoredParameterKey
 } from './model';
@@ -60,12 +66,35 @@ export interface ExclusionInput {
 	reason: string;
 }
 
+/**
+ * Which model to fit: 'auto' fits every candidate the data support, compares their
+ * cross-validated errors and keeps the proposed one (physics.md §5); or one named model.
+ */
+export type ModelChoice =
+	| 'auto'
+	| {
+			family: LauncherFamily;
+			drag?: DragLaw;
+			/** Gas work: fit η1. */
+			pressureSlope?: boolean;
+			/** Gas work: fit the energy term E. */
+			energyOffset?: boolean;
+			/** Fit the drag parameter (default: when the shots carry flight data). */
+			dragCoefficient?: boolean;
+			/** Fit δθ (default: when the shots carry impact heights). */
+			elevationBias?: boolean;
+	  };
+
 export interface FitCalibrationInput {
 	rigId: number;
 	projectileId: number;
 	sessionIds: readonly number[];
-	/** Parameters to fit; the efficiency η0 is always fitted, listed or not. */
-	parameters: readonly ParameterName[];
+	/**
+	 * Gas-work parameters to fit (the efficiency η0 is always fitted, listed or not); used when
+	 * `model` is absent. Neither given: 'auto'.
+	 */
+	parameters?: readonly ParameterName[];
+	model?: ModelChoice;
 	exclusions: readonly ExclusionInput[];
 	/** Who runs the fit (calibrations.created_by, audit). */
 	userId: number;
@@ -147,6 +176,19 @@ function checkParameters(parameters: readonly ParameterName[]) {
 	});
 }
 
+const FAMILIES: readonly LauncherFamily[] = ['gas-work', 'valve-flow'];
+const DRAG_LAWS: readonly DragLaw[] = ['constant', 'sphere'];
+
+function checkModel(model: ModelChoice | undefined, sphere: boolean) {
+	if (model === undefined || model === 'auto') return;
+	if (!FAMILIES.includes(model.family))
+		throw new ReconcileError('model.family', `Choose the model family: ${FAMILIES.join(' or ')}.`);
+	if (model.drag !== undefined && !DRAG_LAWS.includes(model.drag))
+		throw new ReconcileError('model.drag', `Choose the drag law: ${DRAG_LAWS.join(' or ')}.`);
+	if (model.drag === 'sphere' && !sphere)
+		throw new ReconcileError('model.drag', 'The sphere drag correlation applies to spherical projectiles only.');
+}
+
 function measurementSdsOf(given: Partial<MeasurementSds> | undefined): MeasurementSds {
 	const sds = { ...DEFAULT_MEASUREMENT_SDS, ...given };
 	for (const [key, value] of Object.entries(sds)) {
@@ -179,6 +221,84 @@ function runFit(shots: CalibrationShot[], sds: MeasurementSds, options: FitLaunc
 	}
 }
 
+/** The option that switches a parameter on (the family's own parameters have none). */
+const OPTION_OF: Partial<Record<ParameterName, keyof FitLauncherOptions>> = {
+	pressureSlope: 'pressureSlope',
+	energyOffset: 'energyOffset',
+	dragCoefficient: 'dragCoefficient',
+	elevationBias: 'elevationBias'
+};
+
+/** The older request shape: a list of gas-work parameters. */
+function legacyChoice(parameters: readonly ParameterName[]): ModelChoice {
+	return {
+		family: 'gas-work',
+		drag: 'constant',
+		pressureSlope: parameters.includes('pressureSlope'),
+		energyOffset: parameters.includes('energyOffset'),
+		dragCoefficient: parameters.includes('dragCoefficient'),
+		elevationBias: parameters.includes('elevationBias')
+	};
+}
+
+function optionsOfChoice(choice: Exclude<ModelChoice, 'auto'>): FitLauncherOptions {
+	return {
+		model: { family: choice.family, drag: choice.drag ?? 'constant' },
+		pressureSlope: choice.family === 'gas-work' && choice.pressureSlope === true,
+		energyOffset: choice.family === 'gas-work' && choice.energyOffset === true,
+		dragCoefficient: choice.dragCoefficient,
+		elevationBias: choice.elevationBias
+	};
+}
+
+function optionsOfFit(fit: LauncherFitResult): FitLauncherOptions {
+	const fitted = fit.calibration.fitted;
+	return {
+		model: fit.model,
+		pressureSlope: fitted.includes('pressureSlope'),
+		energyOffset: fitted.includes('energyOffset'),
+		dragCoefficient: fitted.includes('dragCoefficient'),
+		elevationBias: fitted.includes('elevationBias')
+	};
+}
+
+function runComparison(
+	shots: CalibrationShot[],
+	sds: MeasurementSds,
+	options: { sphere: boolean; crossValidation: FitLauncherOptions['crossValidation'] }
+): { comparison: ModelComparison; proposed: LauncherFitResult } {
+	try {
+		const cv = options.crossValidation;
+		const r = compareModels(shots, sds, { sphere: options.sphere, crossValidation: cv === false || cv === undefined ? 'auto' : cv });
+		if (!r.proposed) throw new ReconcileError('sessionIds', `No model could be fitted to these shots: ${r.comparison.reason}`);
+		return { comparison: r.comparison, proposed: r.proposed };
+	} catch (e) {
+		if (e instanceof PhysicsInputError)
+			throw new ReconcileError('sessionIds', `The fit cannot start on these shots: ${e.message}`);
+		throw e;
+	}
+}
+
+/** JSON keeps no Infinity: a score that could not be computed is stored as null. */
+function storableComparison(c: ModelComparison): StoredComparison {
+	return {
+		...c,
+		noiseFloorByKind: perKind(c.noiseFloorByKind),
+		candidates: c.candidates.map((o) => ({
+			...o,
+			score: finiteOrNull(o.score),
+			rmsByKind: perKind(o.rmsByKind),
+			heldOutRmsByKind: perKind(o.heldOutRmsByKind),
+			heldOutRatioByKind: perKind(o.heldOutRatioByKind)
+		}))
+	};
+}
+
+/** A drag parameter that is not fitted: the nominal C_D, or the bare correlation (factor 1). */
+function heldDrag(law: DragLaw, nominalDragCoefficient: number): number {
+	return law === 'sphere' ? 1 : nominalDragCoefficient;
+}
+
 /** Value a parameter is held at when it is not fitted: nominal C_D, zero for the optional terms. */
 function heldValue(name: ParameterName, nominalDragCoefficient: number, fitEfficiency: number) {
 	if (name === 'dragCoefficient') return nominalDragCoefficient;
@@ -195,7 +315,7 @@ function heldValue(name: ParameterName, nominalDragCoefficient: number, fitEffic
  */
 export async function fitCalibration(tx: Executor, input: FitCalibrationInput): Promise<FitCalibrationResult> {
 	checkExclusions(input.exclusions);
-	checkParameters(input.parameters);
+	checkParameters(input.parameters ?? []);
 	const sds = measurementSdsOf(input.measurementSds);
 	const sessionIds = [...new Set(input.sessionIds)];
 	if (sessionIds.length === 0) throw new ReconcileError('sessionIds', 'Choose at least one range session to fit.');
@@ -207,6 +327,7 @@ export async function fitCalibration(tx: Executor, input: FitCalibrationInput): 
 	]);
 	if (!rig) throw new ReconcileError('rigId', `No rig with id ${input.rigId}.`, 404);
 	if (!projectile) throw new ReconcileError('projectileId', `No projectile with id ${input.projectileId}.`, 404);
+	checkModel(input.model, projectile.shape === 'sphere');
 	const sessionById = new Map(sessionRows.map((s) => [s.id, s]));
 	for (const id of sessionIds) {
 		const s = sessionById.get(id);
@@ -278,26 +399,40 @@ export async function fitCalibration(tx: Executor, input: FitCalibrationInput): 
 	if (fitShots.length === 0)
 		throw new ReconcileError('sessionIds', 'The chosen sessions have no shots with a measured speed or impact to fit.');
 
-	// Fit; when something requested is not determined, hold it and fit the rest again.
-	const requested = PARAMETER_NAMES.filter((n) => n === 'efficiency' || input.parameters.includes(n));
-	const optionsFor = (names: readonly ParameterName[]): FitLauncherOptions => ({
-		pressureSlope: names.includes('pressureSlope'),
-		lossForce: names.includes('lossForce'),
-		dragCoefficient: names.includes('dragCoefficient'),
-		elevationBias: names.includes('elevationBias'),
-		start: { dragCoefficient: projectile.nominalDragCoefficient },
-		crossValidation: input.crossValidation ?? 'auto'
-	});
-	const first = runFit(fitShots, sds, optionsFor(requested));
-	const firstUndetermined = first.parameters.filter((p) => !p.identifiable && p.name !== 'efficiency');
+	// Fit: 'auto' compares every candidate by held-out error and keeps the proposed one; a named
+	// model is fitted as asked. When something requested is not determined, hold it and fit the
+	// rest again.
+	const sphere = projectile.shape === 'sphere';
+	const crossValidation = input.crossValidation ?? 'auto';
+	const choice: ModelChoice = input.model ?? (input.parameters ? legacyChoice(input.parameters) : 'auto');
+	let comparison: ModelComparison | null = null;
+	let first: LauncherFitResult;
+	let requestedOptions: FitLauncherOptions;
+	if (choice === 'auto') {
+		const compared = runComparison(fitShots, sds, { sphere, crossValidation });
+		comparison = compared.comparison;
+		first = compared.proposed;
+		requestedOptions = { ...optionsOfFit(first), crossValidation };
+	} else {
+		requestedOptions = { ...optionsOfChoice(choice), crossValidation };
+		first = runFit(fitShots, sds, requestedOptions);
+	}
+	const requested = first.calibration.fitted;
+	// Only the optional terms can be held; the family's own parameters stay fitted and reported.
+	const firstUndetermined = first.parameters.filter((p) => !p.identifiable && OPTION_OF[p.name] !== undefined);
 	const final =
 		firstUndetermined.length > 0
-			? runFit(fitShots, sds, optionsFor(requested.filter((n) => !firstUndetermined.some((p) => p.name === n))))
+			? runFit(fitShots, sds, {
+					...requestedOptions,
+					...Object.fromEntries(firstUndetermined.map((p) => [OPTION_OF[p.name]!, false])),
+					start: { dragCoefficient: heldDrag(first.model.drag, projectile.nominalDragCoefficient) }
+				})
 			: first;
 
 	const finalByName = new Map(final.parameters.map((p) => [p.name, p]));
 	const reports = requested.map((name): ParameterReport => finalByName.get(name) ?? first.parameters.find((p) => p.name === name)!);
 	const fitEfficiency = final.calibration.parameters.efficiency;
+	const model = final.model;
 	const lines: ParameterLine[] = reports.map((r) => {
 		return {
 			name: r.name,
@@ -318,14 +453,9 @@ export async function fitCalibration(tx: Executor, input: FitCalibrationInput): 
 	// it was not fitted (so later changes of the projectile's nominal C_D do not alter it).
 	const fp = final.calibration.parameters;
 	const fittedFinal = final.calibration.fitted;
-	const parameters: CalibrationParameters = {
-		eta0: fp.efficiency,
-		pRefPa: fp.pRefPa,
-		dragCoefficient: fp.dragCoefficient
-	};
-	if (fittedFinal.includes('pressureSlope')) parameters.eta1 = fp.pressureSlope;
-	if (fittedFinal.includes('lossForce')) parameters.lossN = fp.lossN;
-	if (fittedFinal.includes('elevationBias')) parameters.elevationBiasDeg = fp.elevationBiasDeg;
+	const parameters: CalibrationParameters = { model, pRefPa: fp.pRefPa, dragCoefficient: fp.dragCoefficient };
+	if (model.family === 'gas-work') parameters.eta0 = fp.efficiency;
+	for (const name of fittedFinal) parameters[STORED_KEY[name]] = fp[PARAMETER_FIELD[name]];
 	const standardErrors: Record<string, number | null> = Object.fromEntries(
 		lines.map((l) => [l.key, finiteOrNull(l.standardError)])
 	);
@@ -338,6 +468,10 @@ export async function fitCalibration(tx: Executor, input: FitCalibrationInput): 
 
 	const converged = final.converged;
 	const summary: CalibrationSummary = {
+		model,
+		comparison: comparison ? storableComparison(comparison) : null,
+		failure: final.failure,
+		unused: final.unused.map((u) => ({ shotId: Number(u.id), reason: u.reason })),
 		converged,
 		message: [final.message, ...firstUndetermined.map((p) => p.reason ?? '')].filter((m) => m !== '').join('; '),
 		covarianceParameters: fittedFinal.map((n) => STORED_KEY[n]),

@@ -20,7 +20,7 @@ import { and, desc, eq, inArray, isNull } from 'drizzle-orm';
 import { airDensity } from '$lib/physics/air';
 import { chanceOfMeetingPlan, type ChanceResult, type PlanRequirements } from '$lib/physics/chance';
 import { PhysicsInputError } from '$lib/physics/errors';
-import { predictShot, type ShotSetup } from '$lib/physics/fit/launcher';
+import { predictShot, type ShotSetup } from '$lib/physics/launcher';
 import { rangeSessions, shotPredictions, shots, testPlans } from '../db/schema';
 import { ReconcileError } from './errors';
 import { calibrationInForce, launcherProjectile, launcherRig, type Executor } from './model';

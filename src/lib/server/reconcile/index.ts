@@ -102,4 +102,4 @@ export {
 	type DispersionEstimate,
 	type SetupInput
 } from './chance';
-export type { ParameterName, MeasurementSds } from '$lib/physics/fit/launcher';
+export type { ParameterName, MeasurementSds } from '$lib/physics/launcher';

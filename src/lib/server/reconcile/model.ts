@@ -2,20 +2,26 @@
 // physics module's inputs. Everything here reads; nothing writes.
 //
 // Stored calibrations (calibrations.parameters, typed CalibrationParameters in schema.ts) name
-// their parameters eta0, eta1, lossN, dragCoefficient, elevationBiasDeg; the physics module's
-// fit names them efficiency, pressureSlope, lossForce, dragCoefficient, elevationBias.
+// their parameters eta0, eta1, energyOffsetJ, valveAreaM2, openingTimeS, frictionN,
+// dragCoefficient, elevationBiasDeg; the physics module's fit names them efficiency,
+// pressureSlope, energyOffset, valveArea, openingTime, friction, dragCoefficient, elevationBias.
 // STORED_KEY is the one place that maps one onto the other.
 import { and, eq, inArray } from 'drizzle-orm';
 import { airDensity } from '$lib/physics/air';
-import type {
-	LauncherCalibration,
-	LauncherRig,
-	MeasurementSds,
-	ObservationKind,
-	ParameterName,
-	Projectile as LauncherProjectile,
-	RangeConditions
-} from '$lib/physics/fit/launcher';
+import {
+	DEFAULT_MODEL,
+	neutralParameters,
+	type CandidateOutcome,
+	type LauncherCalibration,
+	type LauncherModel,
+	type ModelComparison,
+	type LauncherRig,
+	type MeasurementSds,
+	type ObservationKind,
+	type ParameterName,
+	type Projectile as LauncherProjectile,
+	type RangeConditions
+} from '$lib/physics/launcher';
 import type { Database, Transaction } from '../db';
 import {
 	calibrations,
@@ -34,12 +40,15 @@ export type ProjectileRow = typeof projectiles.$inferSelect;
 export type RangeSessionRow = typeof rangeSessions.$inferSelect;
 export type CalibrationRow = typeof calibrations.$inferSelect;
 
-export type StoredParameterKey = Exclude<keyof CalibrationParameters, 'pRefPa'>;
+export type StoredParameterKey = Exclude<keyof CalibrationParameters, 'pRefPa' | 'model' | 'lossN'>;
 
 export const PARAMETER_NAMES: readonly ParameterName[] = [
 	'efficiency',
 	'pressureSlope',
-	'lossForce',
+	'energyOffset',
+	'valveArea',
+	'openingTime',
+	'friction',
 	'dragCoefficient',
 	'elevationBias'
 ];
@@ -48,7 +57,10 @@ export const PARAMETER_NAMES: readonly ParameterName[] = [
 export const STORED_KEY: Record<ParameterName, StoredParameterKey> = {
 	efficiency: 'eta0',
 	pressureSlope: 'eta1',
-	lossForce: 'lossN',
+	energyOffset: 'energyOffsetJ',
+	valveArea: 'valveAreaM2',
+	openingTime: 'openingTimeS',
+	friction: 'frictionN',
 	dragCoefficient: 'dragCoefficient',
 	elevationBias: 'elevationBiasDeg'
 };
@@ -64,7 +76,20 @@ export type PerKind = Record<ObservationKind, number | null>;
  * The shape of calibrations.summary as fitCalibration writes it (JSON: non-finite numbers are
  * stored as null). The calibration page shows it as the fit report.
  */
+/** A model comparison as stored (JSON: a score that could not be computed is null). */
+export type StoredComparison = Omit<ModelComparison, 'candidates'> & {
+	candidates: (Omit<CandidateOutcome, 'score'> & { score: number | null })[];
+};
+
 export interface CalibrationSummary {
+	/** Family and drag law (absent on calibrations made before the valve-flow family). */
+	model?: LauncherModel;
+	/** The candidates compared by held-out error, when the model was chosen automatically. */
+	comparison?: StoredComparison | null;
+	/** When the solver stopped early: the cause in plain words. */
+	failure?: string | null;
+	/** Shots the start could not predict, set aside with the reason. */
+	unused?: { shotId: number; reason: string }[];
 	converged: boolean;
 	message: string;
 	/** Parameters that were actually fitted, in the order of calibrations.covariance (stored keys). */
@@ -159,6 +184,7 @@ export class ConditionsCache {
 				aimHeightM: session.aimHeightM,
 				airDensityKgM3: airDensity({ temperatureC, pressurePa, relativeHumidity: session.relativeHumidity }),
 				ambientPa: pressurePa,
+				temperatureC,
 				wind: { xMps: session.windXMps, zMps: session.windZMps }
 			};
 			this.entries.set(key, conditions);
@@ -173,14 +199,12 @@ export function nominalModel(
 	projectile: Pick<ProjectileRow, 'nominalDragCoefficient'>
 ): LauncherCalibration {
 	return {
+		model: DEFAULT_MODEL,
 		parameters: {
+			// Any positive p_ref: with a zero slope it does not enter the prediction.
+			...neutralParameters(rig.ratedPressurePa),
 			efficiency: rig.nominalEfficiency,
-			pressureSlope: 0,
-			// Any positive value: with a zero slope p_ref does not enter the prediction.
-			pRefPa: rig.ratedPressurePa,
-			lossN: 0,
-			dragCoefficient: projectile.nominalDragCoefficient,
-			elevationBiasDeg: 0
+			dragCoefficient: projectile.nominalDragCoefficient
 		},
 		fitted: [],
 		identifiable: [],
@@ -195,18 +219,25 @@ export function summaryOf(row: CalibrationRow): CalibrationSummary {
 }
 
 /** A stored calibration as the physics module's LauncherCalibration. */
-export function storedModel(row: CalibrationRow, projectile: ProjectileRow): LauncherCalibration {
+export function storedModel(row: CalibrationRow, projectile: ProjectileRow, rig: Pick<RigRow, 'travelM'>): LauncherCalibration {
 	const p = row.parameters;
 	const summary = summaryOf(row);
 	const fitted = (summary.covarianceParameters ?? [])
-		.map(parameterNameOf)
+		.map((key) => ((key as string) === 'lossN' ? 'energyOffset' : parameterNameOf(key)))
 		.filter((name): name is ParameterName => name !== null);
+	const pRefPa = p.pRefPa ?? summary.pRefPa ?? 1;
+	const neutral = neutralParameters(pRefPa);
 	return {
+		model: p.model ?? DEFAULT_MODEL,
 		parameters: {
-			efficiency: p.eta0,
+			...neutral,
+			efficiency: p.eta0 ?? neutral.efficiency,
 			pressureSlope: p.eta1 ?? 0,
-			pRefPa: p.pRefPa ?? summary.pRefPa ?? 1,
-			lossN: p.lossN ?? 0,
+			// Calibrations made before the energy term stored a loss force F: E = F·L.
+			energyOffsetJ: p.energyOffsetJ ?? (p.lossN ?? 0) * rig.travelM,
+			valveAreaM2: p.valveAreaM2 ?? neutral.valveAreaM2,
+			openingTimeS: p.openingTimeS ?? neutral.openingTimeS,
+			frictionN: p.frictionN ?? 0,
 			dragCoefficient: p.dragCoefficient ?? projectile.nominalDragCoefficient,
 			elevationBiasDeg: p.elevationBiasDeg ?? 0
 		},
@@ -253,7 +284,7 @@ export function inForceOf(
 		record,
 		rig,
 		projectile,
-		model: record ? storedModel(record, projectile) : nominalModel(rig, projectile)
+		model: record ? storedModel(record, projectile, rig) : nominalModel(rig, projectile)
 	};
 }
 

@@ -9,7 +9,7 @@
 import { and, asc, eq, gt, inArray, notInArray, sql, type Column } from 'drizzle-orm';
 import mysql from 'mysql2';
 import { PhysicsInputError } from '$lib/physics/errors';
-import { predictShot, type ShotPredictionResult, type ShotSetup } from '$lib/physics/fit/launcher';
+import { predictShot, type ShotPredictionResult, type ShotSetup } from '$lib/physics/launcher';
 import { calibrations, projectiles, rangeSessions, rigs, shotPredictions, shots, testPlans, type SpeedBasis } from '../db/schema';
 import { columnName, insertedRow, name, rowOf, selectList, tableName, type Statement } from '../db/raw';
 import {

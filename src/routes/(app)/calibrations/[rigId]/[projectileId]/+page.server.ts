@@ -46,7 +46,18 @@ export const actions: Actions = {
 				rigId,
 				projectileId,
 				sessionIds: form.data.sessionIds,
-				parameters: ['efficiency', ...form.data.parameters],
+				...(form.data.model === 'auto'
+					? { model: 'auto' as const }
+					: {
+							model: {
+								family: form.data.model,
+								drag: form.data.drag,
+								pressureSlope: form.data.parameters.includes('pressureSlope'),
+								energyOffset: form.data.parameters.includes('energyOffset'),
+								dragCoefficient: form.data.parameters.includes('dragCoefficient'),
+								elevationBias: form.data.parameters.includes('elevationBias')
+							}
+						}),
 				exclusions: form.data.exclusions.map((e, i) => ({ shotId: refs.shotIds[i], reason: e.reason })),
 				userId: user.id,
 				notes: form.data.notes || null

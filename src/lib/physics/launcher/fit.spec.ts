@@ -3,7 +3,7 @@ import { PhysicsInputError } from '../errors';
 import { flyToPlane } from '../flight/driver';
 import { muzzleSpeed } from '../internal';
 import { studentTQuantile } from '../stats/student-t';
-import { leastSquares } from './least-squares';
+import { leastSquares } from '../fit/least-squares';
 import {
 	fitLauncher,
 	predictShot,
@@ -13,7 +13,7 @@ import {
 	type LauncherCalibration,
 	type MeasurementSds,
 	type RangeConditions
-} from './launcher';
+} from './index';
 import { simulateCampaign, type SyntheticCampaign } from './synthetic';
 
 // Launcher of reference sheet §1 (V0 = 1 L, d = 25 mm, L = 1 m, m = 20 g, γ = 1.4).
@@ -76,7 +76,10 @@ const TRUTH: CalibrationParameters = {
 	efficiency: 0.62,
 	pressureSlope: 0,
 	pRefPa: 5e5,
-	lossN: 0,
+	energyOffsetJ: 0,
+	valveAreaM2: 1e-4,
+	openingTimeS: 0.01,
+	frictionN: 0,
 	dragCoefficient: 0.5,
 	elevationBiasDeg: 0.3
 };
@@ -114,7 +117,7 @@ const truthOf = (name: string, t: CalibrationParameters = TRUTH) =>
 	({
 		efficiency: t.efficiency,
 		pressureSlope: t.pressureSlope,
-		lossForce: t.lossN,
+		energyOffset: t.energyOffsetJ,
 		dragCoefficient: t.dragCoefficient,
 		elevationBias: t.elevationBiasDeg
 	})[name]!;
@@ -152,9 +155,9 @@ describe('fitLauncher: recovery of known parameters from simulated campaigns', (
 	});
 
 	it('pressure slope η1 and loss force F: recovered, and p_ref is the mean fill pressure', () => {
-		const truth = { ...TRUTH, pressureSlope: -0.06, lossN: 3 };
+		const truth = { ...TRUTH, pressureSlope: -0.06, energyOffsetJ: 3 };
 		const shots = campaign({ truth, shotsPerSession: 30, fillPressuresPa: [2e5, 3e5, 4e5, 5e5, 6e5, 7e5, 8e5] });
-		const fit = fitLauncher(shots, NOISE, { pressureSlope: true, lossForce: true, elevationBias: true });
+		const fit = fitLauncher(shots, NOISE, { pressureSlope: true, energyOffset: true, elevationBias: true });
 		expect(fit.converged, fit.message).toBe(true);
 		const mean = shots.reduce((s, x) => s + x.fillGaugePa, 0) / shots.length;
 		expect(fit.calibration.parameters.pRefPa).toBeCloseTo(mean, 6);
@@ -233,7 +236,7 @@ describe('fitLauncher: what the data cannot determine', () => {
 		const fit = fitLauncher(shots, NOISE, { dragCoefficient: true });
 		const cd = fit.parameters.find((p) => p.name === 'dragCoefficient')!;
 		expect(cd.identifiable).toBe(false);
-		expect(cd.reason).toBe('drag coefficient cannot be determined: no downrange speeds or impact heights at distance');
+		expect(cd.reason).toBe('drag coefficient C_D cannot be determined: no downrange speeds or impact heights at distance');
 		expect(cd.standardError).toBe(Infinity);
 		expect(cd.confidence95).toEqual({ lower: -Infinity, upper: Infinity });
 		expect(fit.parameters[0].identifiable).toBe(true);
@@ -316,20 +319,20 @@ function mean(xs: number[]): number {
 
 describe('predictShot', () => {
 	const calibration: LauncherCalibration = {
-		parameters: { ...TRUTH, pressureSlope: -0.05, lossN: 2 },
-		fitted: ['efficiency', 'pressureSlope', 'lossForce', 'dragCoefficient', 'elevationBias'],
+		parameters: { ...TRUTH, pressureSlope: -0.05, energyOffsetJ: 2 },
+		fitted: ['efficiency', 'pressureSlope', 'energyOffset', 'dragCoefficient', 'elevationBias'],
 		identifiable: [true, true, true, true, true],
 		covariance: Array.from({ length: 5 }, () => new Array<number>(5).fill(0)),
 		fillPressureRangePa: { min: 3e5, max: 7e5 }
 	};
 	const setup = { rig: RIG, projectile: PROJECTILE, session: session('p'), fillGaugePa: 4.5e5 };
 
-	it('is muzzleSpeed with η(p_g) = η0 + η1(p_g − p_ref)/p_ref and F, then flyToPlane with C_D and θ + δθ', () => {
+	it('is muzzleSpeed with η(p_g) = η0 + η1(p_g − p_ref)/p_ref and E (as E/L), then flyToPlane with C_D and θ + δθ', () => {
 		const r = predictShot(calibration, setup, { downrangeDistanceM: 20 });
 		if (!r.ok) throw new Error(r.reason);
 		const eta = 0.62 - (0.05 * (4.5e5 - 5e5)) / 5e5;
 		expect(r.efficiency).toBeCloseTo(eta, 14);
-		const ms = muzzleSpeed({ ...RIG, ...PROJECTILE, fillGaugePa: 4.5e5, ambientPa: P_ATM, efficiency: eta, lossN: 2 });
+		const ms = muzzleSpeed({ ...RIG, ...PROJECTILE, fillGaugePa: 4.5e5, ambientPa: P_ATM, efficiency: eta, lossN: 2 / RIG.travelM });
 		if (!ms.ok) throw new Error(ms.reason);
 		expect(r.muzzleSpeedMps).toBe(ms.speedMps);
 		const flight = {

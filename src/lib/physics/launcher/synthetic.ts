@@ -4,16 +4,15 @@
 // truth is known.
 
 import { createRandom } from '../random';
+import type { CalibrationShot, MeasurementSds } from './fit';
 import {
 	predictShot,
 	type CalibrationParameters,
-	type CalibrationShot,
 	type LauncherCalibration,
 	type LauncherRig,
-	type MeasurementSds,
 	type Projectile,
 	type RangeConditions
-} from './launcher';
+} from './model';
 
 export interface SyntheticCampaign {
 	truth: CalibrationParameters;
