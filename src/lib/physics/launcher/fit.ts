@@ -694,10 +694,20 @@ export function fitLauncher(shots: CalibrationShot[], sds: MeasurementSds, optio
 	const base: CalibrationParameters = { ...neutralParameters(pRefPa), ...given, pRefPa };
 	const starts = startShots(prepared);
 	if (model.family === 'gas-work' && given.efficiency === undefined) {
-		const s = gasWorkStart(starts, pRefPa, { pressureSlope: names.includes('pressureSlope'), energyOffset: names.includes('energyOffset') });
-		base.efficiency = s.efficiency;
-		if (names.includes('pressureSlope')) base.pressureSlope = s.pressureSlope;
-		if (names.includes('energyOffset')) base.energyOffsetJ = s.energyOffsetJ;
+		// The energy-linear solution with every requested term; should it leave shots that the
+		// start cannot predict (η(p) outside (0, 1] at the ends of a short sweep), the same without
+		// the slope, and whichever predicts more shots starts the fit (the LM then moves η1).
+		const energyOffset = names.includes('energyOffset');
+		const tries = [gasWorkStart(starts, pRefPa, { pressureSlope: names.includes('pressureSlope'), energyOffset })];
+		if (names.includes('pressureSlope')) tries.push(gasWorkStart(starts, pRefPa, { pressureSlope: false, energyOffset }));
+		const failures = (t: (typeof tries)[number]) => {
+			const trial = { ...base, efficiency: t.efficiency, pressureSlope: t.pressureSlope, energyOffsetJ: energyOffset ? t.energyOffsetJ : base.energyOffsetJ };
+			return prepared.filter((s) => !calibratedMuzzleSpeed(model, trial, s.setup, s.setup.fillGaugePa).ok).length;
+		};
+		const chosen = tries.reduce((a, b) => (failures(b) < failures(a) ? b : a));
+		base.efficiency = chosen.efficiency;
+		if (names.includes('pressureSlope')) base.pressureSlope = chosen.pressureSlope;
+		if (energyOffset) base.energyOffsetJ = chosen.energyOffsetJ;
 	}
 	if (model.family === 'valve-flow' && given.valveAreaM2 === undefined) {
 		const s = valveFlowStart(starts, base);

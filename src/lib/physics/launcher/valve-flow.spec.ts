@@ -111,18 +111,18 @@ function referenceShot(c: ValveFlowInput): Reference {
 	const segment = (moving: boolean, t0: number, y0: number[], t1: number, ev: Ev) => {
 		const f = rhs(moving);
 		let previous = { t: t0, y: y0.slice() };
-		let hit: { tOld: number; yOld: number[]; t: number; dense: (c: number, x: number) => number } | null = null;
+		const found: { hit?: { tOld: number; yOld: number[]; t: number; dense: (c: number, x: number) => number } } = {};
 		const out = solver(true).solve(f, t0, y0, t1, (n, xOld, x, y, dense) => {
 			minRatio = Math.min(minRatio, y[1] / y[0]);
 			maxRatio = Math.max(maxRatio, y[1] / y[0]);
 			if (n > 1 && ev.e(y) >= 0 && dense) {
-				hit = { tOld: previous.t, yOld: previous.y, t: x, dense };
+				found.hit = { tOld: previous.t, yOld: previous.y, t: x, dense };
 				return false;
 			}
 			previous = { t: x, y: y.slice() };
 		});
-		if (hit === null) return { t: t1, y: out.y, hit: false };
-		const { tOld, yOld, t, dense } = hit as NonNullable<typeof hit>;
+		if (!found.hit) return { t: t1, y: out.y, hit: false };
+		const { tOld, yOld, t, dense } = found.hit;
 		// Bisection on the dense output, then Newton on exact re-integrations from the step start.
 		const denseState = (x: number) => [0, 1, 2, 3].map((k) => dense(k, x));
 		let lo = tOld;

@@ -6,23 +6,23 @@
 //
 //   Reservoir V_r, isentropic:   T_r = T0 (P_r/P_r0)^((γ−1)/γ),   dP_r/dt = −γ ṁ R T_r / V_r
 //   Valve area, linear opening:  a(t) = a_v · min(1, t/τ)
-//   Orifice flow, r = P_b/P_r:   ṁ = a P_r √(R T_r)/(R T_r) · ψ(r)
+//   Orifice flow, r = P_b/P_r:   ṁ = a P_r ψ(r) / √(R T_r)
 //       ψ = √γ (2/(γ+1))^((γ+1)/(2(γ−1)))            choked,   r ≤ r* = (2/(γ+1))^(γ/(γ−1))
 //       ψ = √(2γ/(γ−1) · (r^(2/γ) − r^((γ+1)/γ)))    subsonic, r* < r < 1
 //       ψ = 0                                        r ≥ 1 (a check valve in effect: no back-flow)
-//     (isentropic flow of an ideal gas through a nozzle from stagnation conditions (P_r, T_r):
-//     J.D. Anderson, "Modern Compressible Flow", 3rd ed., McGraw-Hill 2003, ch. 5; the same
-//     relation is the basis of ISO 6358-1:2013 for pneumatic components.)
+//     (isentropic flow of an ideal gas through a nozzle from stagnation conditions (P_r, T_r),
+//     e.g. J.D. Anderson, "Modern Compressible Flow", 3rd ed., McGraw-Hill 2003, ch. 5.)
 //   Gas behind the projectile:   V_b = V_d + A x,  dP_b/dt = γ (ṁ R T_r − P_b A v)/V_b
 //     (first law for an open volume of ideal gas, U = P V/(γ−1), receiving the enthalpy flow
-//     ṁ c_p T_r and doing the work P_b dV_b: M.J. Moran & H.N. Shapiro, "Fundamentals of
-//     Engineering Thermodynamics", §4.2 and §4.3, transient analysis.)
+//     ṁ c_p T_r and doing the work P_b dV_b: the control-volume energy balance of e.g.
+//     M.J. Moran & H.N. Shapiro, "Fundamentals of Engineering Thermodynamics", ch. 4.)
+//   R is DRY_AIR_GAS_CONSTANT of ../air.ts (287.052 87 J/(kg·K)); γ defaults to 1.4.
 //   Projectile:                   m dv/dt = (P_b − p_a) A − F   while moving; at rest it starts
 //     only once (P_b − p_a) A > F (static friction F, any finite sign, subtracted once moving).
 //
 // Why the code is our own: no JavaScript package implements this model, and a general ODE package
-// (odex, used by the tests as an independent check) lacks exact event location and allocates on
-// every call, while a calibration evaluates this model thousands of times. The integrator is not
+// (odex, used by the tests as an independent check) has no event location of its own and
+// allocates on every call, while a calibration evaluates this model thousands of times. The integrator is not
 // new code: it is the DOP853 pair of ../flight/ (tableau, stepper, step-size control, checked
 // there against SciPy), imported as it is.
 //
@@ -32,9 +32,16 @@
 // (ds/ds = 1, integrated exactly), because the flight/ machinery is written for autonomous
 // systems. The right-hand side is piecewise smooth; every piece boundary is made a step boundary
 // so the 8th-order steps never straddle a kink: the valve's full opening t = τ (steps are clipped
-// to end on it exactly), the start of the motion (P_b − p_a) A = F, and a stop (v = 0), both
-// located as roots of the step's dense-output interpolant. The choked/subsonic switch is C¹ (ψ has
-// zero slope at r*) and left to the error control.
+// to end on it exactly); the start of the motion ((P_b − p_a) A = F), a stop (v = 0) and the
+// switch between choked and subsonic flow (r = r*, where ψ is only C¹), each located as a root of
+// the step's dense-output interpolant, with each formula continued smoothly past its boundary
+// inside the step that finds it.
+//
+// Known cost: DOP853 is explicit. When the valve can pass far more gas than the moving projectile
+// makes room for (a large, fast valve; a low fill; the first instants of a shot without friction)
+// the pressures on the two sides nearly equalise, and since ψ ≈ √(2(1 − r)) there, the system is
+// stiff (relaxation rate ∝ (valve area)² / demand): steps are then limited by stability, not by
+// accuracy, and a shot costs thousands of evaluations instead of a few hundred (see the spec).
 //
 // While the projectile rests the gas does no work, so P_r V_r + P_b V_b is conserved and the
 // pressure behind it can rise at most to P_eq = (P_r V_r + P_b V_b)/(V_r + V_b): if that does not
@@ -290,11 +297,15 @@ function valveFlowProblem(i: ValveFlowInput, options: ValveFlowOptions): ValveFl
 		frictionN / (startPa * boreAreaM2),
 		openingTimeS / timeScale
 	);
-	for (const [field, value] of Object.entries(model)) {
-		// Extreme but individually valid inputs could still combine into an overflow.
-		if (typeof value === 'number' && !Number.isFinite(value)) {
-			throw new PhysicsInputError(field, 'out-of-range', `the valve-flow inputs combine into a non-finite ${field}`);
-		}
+	// Extreme but individually valid inputs (e.g. a 1000 kg projectile on a 1 Pa atmosphere)
+	// could still combine into scales that overflow or vanish.
+	const scales = [speedScale, timeScale, kappa, model.friction, model.openingTime, model.deadOverSwept];
+	if (!scales.every((x) => Number.isFinite(x)) || !(speedScale > 0)) {
+		throw new PhysicsInputError(
+			'input',
+			'out-of-range',
+			'the valve-flow inputs combine into a non-finite time or speed scale; check the units of the inputs'
+		);
 	}
 	return { model, startPa, speedScale, timeScale, travelM, frictionN, boreAreaM2, tolerances };
 }
@@ -501,7 +512,7 @@ function integrate(p: ValveFlowProblem, w: StepWork): ValveFlowResult {
 			}
 			// The right-hand side changes form here: start the next piece no longer than the
 			// step that found the event rather than with that step's growth.
-			h = 0;
+			h = Math.min(h, hStep);
 			[y, yNew] = [yNew, y];
 			restart = true;
 			continue;
