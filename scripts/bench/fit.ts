@@ -4,10 +4,18 @@
 // through the same prediction path as the fit (simulateCampaign), so each fit is also checked
 // against the truth. Prints a markdown table.
 
-import { fitLauncher, type CalibrationShot, type LauncherFitResult, type MeasurementSds } from '../../src/lib/physics/launcher';
+import {
+	compareModels,
+	fitLauncher,
+	neutralParameters,
+	valveFlowMuzzleSpeed,
+	type CalibrationShot,
+	type LauncherFitResult,
+	type MeasurementSds
+} from '../../src/lib/physics/launcher';
 import { simulateCampaign, type SyntheticCampaign } from '../../src/lib/physics/launcher/synthetic';
 
-const TRUTH = { efficiency: 0.62, pressureSlope: 0, pRefPa: 5e5, lossN: 0, dragCoefficient: 0.5, elevationBiasDeg: 0.3 };
+const TRUTH = { ...neutralParameters(5e5), efficiency: 0.62, dragCoefficient: 0.5, elevationBiasDeg: 0.3 };
 const NOISE: MeasurementSds = { speedMps: 0.3, pressurePa: 2000, impactM: 0.01 };
 const LARGE_SESSIONS = 20;
 const LARGE_SHOTS_PER_SESSION = 500;
@@ -66,6 +74,47 @@ const small = Array.from({ length: SMALL_CAMPAIGNS }, (_, i) => campaign(2, SMAL
 const smallFits = timed(() => small.map((shots) => fitLauncher(shots, NOISE, { ...options, crossValidation: false })));
 const smallFitsCv = timed(() => small.map((shots) => fitLauncher(shots, NOISE, options)));
 
+// Model comparison on a 1 000-shot sweep (issue 13: every family, 5-fold CV, target < 5 s): one
+// session of a 35 mm ice ball launcher, truth from the valve-flow family with sphere drag.
+const ICE_RIG = { reservoirM3: 0.003, deadM3: 5e-5, boreDiameterM: 0.0362, travelM: 1.5 };
+const ICE_BALL = { massKg: 0.02059, diameterM: 0.035 };
+const ICE_SESSION = {
+	sessionId: 'sweep',
+	targetDistanceM: 6,
+	elevationDeg: 1.5,
+	launchHeightM: 1.1,
+	aimHeightM: 1.2,
+	airDensityKgM3: 1.2596,
+	ambientPa: 100400,
+	temperatureC: 4,
+	wind: { xMps: 0, zMps: 0 }
+};
+const sweep = simulateCampaign({
+	truth: { ...neutralParameters(1e5), valveAreaM2: 2.1e-4, openingTimeS: 0.015, frictionN: 1.5, dragCoefficient: 1, elevationBiasDeg: -0.01 },
+	model: { family: 'valve-flow', drag: 'sphere' },
+	rig: ICE_RIG,
+	projectile: ICE_BALL,
+	sessions: [ICE_SESSION],
+	fillPressuresPa: Array.from({ length: 1000 }, (_, i) => 60e3 + ((i * 7919) % 1000) * 140),
+	shotsPerSession: 1000,
+	noise: { speedMps: 0.25, pressurePa: 1500, impactM: 0.006 },
+	measure: { muzzleSpeed: true, downrangeDistanceM: 5, impactHeight: true },
+	seed: 7
+});
+const comparison = timed(() => compareModels(sweep, { speedMps: 0.25, pressurePa: 1500, impactM: 0.006 }, { sphere: true, crossValidation: 5 }));
+
+// Valve-flow muzzle speed, one ODE per call, over the sweep's pressures.
+const VALVE = { ...ICE_RIG, massKg: ICE_BALL.massKg, ambientPa: 100400, temperatureK: 277.15, valveAreaM2: 2.1e-4, openingTimeS: 0.015, frictionN: 1.5 };
+const VALVE_CALLS = 5000;
+const valve = timed(() => {
+	let sum = 0;
+	for (let i = 0; i < VALVE_CALLS; i++) {
+		const r = valveFlowMuzzleSpeed({ ...VALVE, fillGaugePa: 60e3 + (i % 1000) * 140 }, { relativeTolerance: 1e-8, absoluteTolerance: 1e-8 });
+		if (r.ok) sum += r.speedMps;
+	}
+	return sum;
+});
+
 const rows = [
 	['case', 'time', 'rate', 'notes'],
 	['---', '---:', '---:', '---'],
@@ -92,6 +141,19 @@ const rows = [
 		`${(smallFitsCv.ms / SMALL_CAMPAIGNS).toFixed(1)} ms/fit`,
 		`${((1000 * SMALL_CAMPAIGNS) / smallFitsCv.ms).toFixed(1)} fits/s`,
 		`all converged: ${smallFitsCv.value.every((f) => f.converged)}`
+	]
+	,
+	[
+		`model comparison, ${sweep.length}-shot sweep, ${comparison.value.comparison.candidates.length} candidates (gas work ×3, valve flow; constant and sphere drag), 5-fold CV each`,
+		`${(comparison.ms / 1000).toFixed(2)} s`,
+		'',
+		`proposed: ${comparison.value.comparison.proposed} (target < 5 s)`
+	],
+	[
+		`valve-flow muzzle speed (ODE, tolerance 1e-8), ${VALVE_CALLS} calls over 60–200 kPa`,
+		`${((1000 * valve.ms) / VALVE_CALLS).toFixed(1)} µs/shot`,
+		`${((1000 * VALVE_CALLS) / valve.ms).toFixed(0)} shots/s`,
+		'target < 200 µs per shot'
 	]
 ];
 console.log(rows.map((r) => `| ${r.join(' | ')} |`).join('\n'));

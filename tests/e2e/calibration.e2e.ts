@@ -45,6 +45,7 @@ test('an analyst fits a calibration, a lead approves it, and the setup sheet fol
 	// Fit something other than what is in force (C_D toggled), so a rerun on the same database
 	// still changes the sheet.
 	const inForce = (await analyst.getByTestId('approved-calibration').getAttribute('data-fitted')) ?? '';
+	await analyst.getByRole('radio', { name: /^Gas work/ }).check();
 	const dragBox = analyst.getByRole('checkbox', { name: /Drag coefficient C_D/ });
 	if (inForce.split(',').includes('dragCoefficient')) await dragBox.uncheck();
 	else await dragBox.check();

@@ -138,5 +138,8 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/shots/[id]': { path: `/api/v1/shots/${MISSING_ID}`, methods: { GET: 'viewer', PATCH: 'analyst', DELETE: 'analyst' } },
 	'/api/v1/predictions': { methods: { POST: 'viewer' } },
 	'/api/v1/imports': { methods: { POST: 'analyst' } },
-	'/api/v1/setup-sheet': { methods: { POST: 'viewer' } }
+	'/api/v1/setup-sheet': { methods: { POST: 'viewer' } },
+	'/api/v1/calibrations': { methods: { GET: 'viewer', POST: 'analyst' } },
+	'/api/v1/calibrations/[id]': { path: `/api/v1/calibrations/${MISSING_ID}`, methods: { GET: 'viewer' } },
+	'/api/v1/calibrations/[id]/approve': { path: `/api/v1/calibrations/${MISSING_ID}/approve`, methods: { POST: 'lead' } }
 };

@@ -1,15 +1,21 @@
 // Chance of meeting a test plan (shared/design/physics.md §7): seeded Monte Carlo over the
-// calibration's parameter uncertainty, the rig's shot-to-shot speed variation and its impact
-// dispersion.
+// calibration's parameter uncertainty, the error of setting and reading the fill gauge, the rig's
+// shot-to-shot speed variation and its impact dispersion.
 //
 // Each sample draws the fitted, identifiable parameters from N(θ̂, Cov) (multivariate normal by the
 // Cholesky factor of Cov; the linearised sampling distribution of a least-squares estimate,
-// Bates & Watts 1988, from memory) and predicts the shot through predictShot. Then:
+// Bates & Watts 1988, from memory) and a fill-pressure error δp ~ N(0, σ_p) (the gauge is set to
+// the sheet's reading, the vessel holds p + δp), and predicts the shot at p + δp through
+// predictShot with the drawn parameters: the gauge error reaches the speed through the model's own
+// curve (to first order dv/dp·δp, and correctly near a peak of the curve, where dv/dp → 0), and
+// moves the impact with the speed. Then:
 // - speed: the predicted speed plus the shot-to-shot variation N(0, σ_v) at the muzzle; at the
 //   target plane that variation is carried by ∂v_target/∂v_muzzle (computed once, nominal setup);
 // - impact: the predicted mean impact plus (N(0, σx), N(0, σy)) lateral and vertical. The
 //   dispersion is the rig's measured group spread, which already contains the vertical spread
-//   that speed variation causes, so speed noise is not flown a second time.
+//   that speed variation causes, so speed noise is not flown a second time. The gauge error is
+//   flown: it is this setup's error in setting the fill, which a residual scatter measured at
+//   recorded readings holds only in part (where it does, the chance errs on the cautious side).
 // The probability is the fraction of samples that meet the requirement; its Monte Carlo standard
 // error is √(p(1 − p)/N) (binomial).
 
@@ -40,6 +46,8 @@ export interface ChanceInput {
 	plan: PlanRequirements;
 	/** The rig's shot-to-shot SD of muzzle speed at one fill reading, m/s. */
 	speedSdMps: number;
+	/** SD of setting and reading the fill gauge, Pa (0: a perfect gauge). */
+	gaugeSdPa: number;
 	/** The rig's impact dispersion in the target plane: lateral σx and vertical σy, m. */
 	impactSdM: { x: number; y: number };
 	/** Monte Carlo samples; default 10 000. */
@@ -62,6 +70,8 @@ export interface ChanceResult {
 	both: Chance | null;
 	samples: number;
 	seed: number;
+	/** The gauge SD the samples drew from, Pa. */
+	gaugeSdPa: number;
 	/** Samples whose parameters predicted no shot (stays in the barrel, falls short): counted as misses. */
 	failedSamples: number;
 	/** The prediction at the calibration's own values. */
@@ -99,6 +109,7 @@ export function chanceOfMeetingPlan(input: ChanceInput): ChanceResult {
 	if (!Number.isInteger(samples) || samples < 1 || samples > MAX_SAMPLES)
 		throw new PhysicsInputError('samples', 'out-of-range', `samples must be a whole number in [1, ${MAX_SAMPLES}]`);
 	const speedSd = requireNonNegative(input.speedSdMps, 'speedSdMps');
+	const gaugeSd = requireNonNegative(input.gaugeSdPa, 'gaugeSdPa');
 	const sdX = requireNonNegative(input.impactSdM.x, 'impactSdM.x');
 	const sdY = requireNonNegative(input.impactSdM.y, 'impactSdM.y');
 	if (plan.speed) {
@@ -141,12 +152,16 @@ export function chanceOfMeetingPlan(input: ChanceInput): ChanceResult {
 			for (let k = 0; k <= i; k++) v += factor[i][k] * z[k];
 			parameters = withParameter(parameters, name, v);
 		});
+		const fillGaugePa = setup.fillGaugePa + random.normal(0, gaugeSd);
 		const shotNoise = random.normal(0, speedSd);
 		const dx = random.normal(0, sdX);
 		const dy = random.normal(0, sdY);
 		let predicted: ReturnType<typeof predictShot>;
 		try {
-			predicted = predictShot({ ...calibration, parameters }, setup);
+			predicted =
+				fillGaugePa < 0
+					? { ok: false, reason: 'the drawn fill pressure is below ambient' }
+					: predictShot({ ...calibration, parameters }, { ...setup, fillGaugePa });
 		} catch (e) {
 			if (!(e instanceof PhysicsInputError)) throw e;
 			predicted = { ok: false, reason: e.message };
@@ -175,13 +190,14 @@ export function chanceOfMeetingPlan(input: ChanceInput): ChanceResult {
 		if (speedOk && impactOk) bothHits++;
 	}
 	if (failedSamples > 0)
-		notes.push(`${failedSamples} of ${samples} parameter draws predicted no shot; they count as misses`);
+		notes.push(`${failedSamples} of ${samples} draws (parameters and gauge error) predicted no shot; they count as misses`);
 	return {
 		speed: plan.speed ? chance(speedHits, samples) : null,
 		impact: radius !== null ? chance(impactHits, samples) : null,
 		both: plan.speed && radius !== null ? chance(bothHits, samples) : null,
 		samples,
 		seed: input.seed,
+		gaugeSdPa: gaugeSd,
 		failedSamples,
 		nominal,
 		notes

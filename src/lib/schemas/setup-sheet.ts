@@ -7,6 +7,9 @@ import { rangeSessionInput } from './range';
 
 const session = rangeSessionInput.shape;
 
+/** Gauge reading SD σ_p, Pa: bounds (default: the calibration's gauge SD, else 1 kPa). */
+export const SETUP_SHEET_GAUGE_SD_PA = { min: 0, max: 100_000 } as const;
+
 /** Monte Carlo samples of the chance of meeting the plan: default and bounds. */
 export const SETUP_SHEET_SAMPLES = { default: 4000, min: 500, max: 100_000 } as const;
 
@@ -28,6 +31,17 @@ export const setupSheetInput = z.object({
 	relativeHumidity: session.relativeHumidity,
 	windXMps: session.windXMps,
 	windZMps: session.windZMps,
+	gaugeSdPa: z
+		.number({ error: 'Gauge reading SD must be a number.' })
+		.min(SETUP_SHEET_GAUGE_SD_PA.min, 'Gauge reading SD must not be negative.')
+		.max(SETUP_SHEET_GAUGE_SD_PA.max, `Gauge reading SD must be at most ${SETUP_SHEET_GAUGE_SD_PA.max} Pa.`)
+		.optional()
+		.meta({
+			title: 'Gauge reading SD',
+			unit: 'Pa',
+			description:
+				'SD of setting and reading the fill gauge. Default: the gauge SD the approved calibration was fitted with, else 1000 Pa.'
+		}),
 	samples: z
 		.number({ error: 'Samples must be a number.' })
 		.int('Samples must be a whole number.')
@@ -63,13 +77,20 @@ export const setupSheetOutput = z.object({
 		status: z.enum(['calibrated', 'uncalibrated']),
 		calibrationId: z.int().nullable(),
 		approvedAt: z.iso.datetime().nullable(),
-		fitted: z.array(z.string()).meta({ description: 'Parameters the calibration fitted (eta0, eta1, lossN, dragCoefficient, elevationBiasDeg).' }),
+		model: z.object({ family: z.enum(['gas-work', 'valve-flow']), drag: z.enum(['constant', 'sphere']) }),
+		fitted: z.array(z.string()).meta({
+			description:
+				'Parameters the calibration fitted (eta0, eta1, energyOffsetJ, valveAreaM2, openingTimeS, frictionN, dragCoefficient, elevationBiasDeg).'
+		}),
 		parameters: z.object({
-			efficiency: z.number(),
-			pressureSlope: z.number(),
+			efficiency: z.number().meta({ description: 'η0 (gas work).' }),
+			pressureSlope: z.number().meta({ description: 'η1, dimensionless (gas work).' }),
 			pRefPa: z.number().meta({ unit: 'Pa' }),
-			lossN: z.number().meta({ unit: 'N' }),
-			dragCoefficient: z.number(),
+			energyOffsetJ: z.number().meta({ unit: 'J', description: 'Energy term E (gas work; either sign).' }),
+			valveAreaM2: z.number().meta({ unit: 'm²', description: 'Effective valve area C·A_v (valve flow).' }),
+			openingTimeS: z.number().meta({ unit: 's', description: 'Valve opening time τ (valve flow).' }),
+			frictionN: z.number().meta({ unit: 'N', description: 'Friction F (valve flow).' }),
+			dragCoefficient: z.number().meta({ description: 'C_D, or the factor on the sphere correlation under the sphere law.' }),
 			elevationBiasDeg: z.number().meta({ unit: '°' })
 		}),
 		fittedPressureRangePa: z.object({ min: z.number(), max: z.number() }).nullable().meta({ unit: 'Pa' }),
@@ -80,12 +101,27 @@ export const setupSheetOutput = z.object({
 		fillGaugePa: z.number().meta({ unit: 'Pa', description: 'Fill pressure to set on the gauge; never above the rated working pressure.' }),
 		marginPa: z.number().meta({ unit: 'Pa', description: 'Rated working pressure minus the fill.' }),
 		elevationDeg: z.number().meta({ unit: '°', description: 'Elevation to set (the calibrated bias is applied by the model).' }),
-		efficiency: z.number(),
+		efficiency: z.number().nullable().meta({ description: 'η at the fill (gas work); null for valve flow.' }),
 		muzzleSpeedMps: mps,
 		targetSpeedMps: mps,
 		flightTimeS: z.number().meta({ unit: 's' }),
 		impact: z.object({ lateralM: metres, heightM: metres, heightAboveGroundM: metres }),
-		outsideCalibratedPressures: z.boolean()
+		outsideCalibratedPressures: z.boolean(),
+		speedPerPressureMpsPerPa: z
+			.number()
+			.meta({ unit: 'm/s per Pa', description: "dv/dp of the plan's speed (at the muzzle or the target) at the fill." }),
+		muzzleSpeedPerPressureMpsPerPa: z.number().meta({ unit: 'm/s per Pa', description: 'dv0/dp of the muzzle speed at the fill.' }),
+		gauge: z.object({
+			sdPa: z.number().meta({ unit: 'Pa', description: 'σ_p: SD of setting and reading the fill gauge.' }),
+			sdSource: z.enum(['input', 'calibration', 'default']),
+			speedSdMps: z.number().meta({ unit: 'm/s', description: "σ_v = |dv/dp|·σ_p: the plan's speed spread by the gauge error alone." }),
+			withinToleranceProbability: z
+				.number()
+				.min(0)
+				.max(1)
+				.meta({ description: 'P(|δv| ≤ tolerance) from the gauge error alone, 2Φ(tol/σ_v) − 1.' }),
+			exceedsTolerance: z.boolean().meta({ description: 'True when ±1.96 σ_v does not fit in ± the tolerance.' })
+		})
 	}),
 	trajectory: z.array(z.object({ timeS: z.number(), downrangeM: metres, heightM: metres, lateralM: metres, speedMps: mps })),
 	spread: z.object({
@@ -95,7 +131,16 @@ export const setupSheetOutput = z.object({
 		sessions: z.int()
 	}),
 	chance: z
-		.object({ speed: chance, impact: chance, both: chance, samples: z.int(), seed: z.int(), failedSamples: z.int() })
+		.object({
+			speed: chance,
+			impact: chance,
+			both: chance,
+			samples: z.int(),
+			seed: z.int(),
+			failedSamples: z.int(),
+			gaugeSdPa: z.number().meta({ unit: 'Pa', description: 'Gauge SD the samples drew the fill error from.' }),
+			uncalibratedSpread: z.boolean().meta({ description: 'Drawn from the wide spread of an uncalibrated model.' })
+		})
 		.nullable(),
 	chanceNote: z.string().nullable(),
 	warnings: z.array(z.string())

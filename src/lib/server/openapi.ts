@@ -19,6 +19,7 @@ import {
 import { MAX_PAGE_SIZE } from './listing';
 import { importRecordSchema, importRefusalSchema, importUploadSchema, IMPORT_UPLOAD_EXAMPLE } from './imports/openapi';
 import { SESSION_SORTS } from './sessions';
+import { approvedCalibration, calibrationDetail, calibrationFitInput, calibrationList } from './calibrations/api';
 import { SPEED_BASES } from './db/schema';
 
 export const API_VERSION = '1.0.0';
@@ -229,6 +230,10 @@ const COMPONENTS = {
 	ImportUpload: { schema: importUploadSchema, io: 'input' },
 	ImportRecord: { schema: importRecordSchema, io: 'output' },
 	ImportRefusal: { schema: importRefusalSchema, io: 'output' },
+	CalibrationFitInput: { schema: calibrationFitInput, io: 'input' },
+	Calibration: { schema: calibrationDetail, io: 'output' },
+	ApprovedCalibration: { schema: approvedCalibration, io: 'output' },
+	CalibrationList: { schema: calibrationList, io: 'output' },
 	ApiError: { schema: apiErrorSchema, io: 'output' }
 } satisfies Record<string, { schema: z.ZodType; io: 'input' | 'output' }>;
 
@@ -677,6 +682,71 @@ export const OPERATIONS: Operation[] = [
 			{ status: 422, description: 'Rows are invalid (all-or-nothing), or none is valid: errors lists every invalid cell with row, column and reason. Nothing was imported.', schema: 'ImportRefusal' }
 		],
 		errors: [400, 403, 404]
+	},
+	{
+		method: 'get',
+		path: '/api/v1/calibrations',
+		operationId: 'listCalibrations',
+		tag: 'Calibrations',
+		summary: 'List calibrations',
+		description: 'Newest first, with the model, convergence and headline values; filtered by rig, projectile and status.',
+		access: 'viewer',
+		parameters: [
+			query('rigId', 'Only this rig’s calibrations.', { type: 'integer', minimum: 1 }),
+			query('projectileId', 'Only this projectile’s calibrations.', { type: 'integer', minimum: 1 }),
+			query('status', 'Only calibrations in this state.', { type: 'string', enum: ['draft', 'approved', 'superseded'] })
+		],
+		responses: [{ status: 200, description: 'The calibrations.', schema: 'CalibrationList' }],
+		errors: [400]
+	},
+	{
+		method: 'post',
+		path: '/api/v1/calibrations',
+		operationId: 'fitCalibration',
+		tag: 'Calibrations',
+		summary: 'Fit a draft calibration',
+		description:
+			'Fits the launcher model of a (rig, projectile) pair to the shots of the chosen sessions (default: every live session of the pair), leaving out the excluded shots (each with a reason, kept with the calibration), and stores a draft with an audit event. With model "auto" every candidate model the data support is fitted and cross-validated and the proposed one is kept: this takes a few seconds. A requested parameter the data cannot determine is reported and held. 404 for an unknown rig or projectile.',
+		access: 'analyst',
+		body: {
+			schema: 'CalibrationFitInput',
+			example: {
+				rigId: 1,
+				projectileId: 1,
+				sessionIds: [1, 2],
+				model: { family: 'gas-work', drag: 'constant', pressureSlope: true },
+				excludedShots: [{ shotId: 17, reason: 'Valve stuck open; chronograph read a double shot.' }],
+				notes: 'Spring campaign, 1.5–6 bar.'
+			}
+		},
+		responses: [{ status: 201, description: 'The draft with its fit report.', schema: 'Calibration' }],
+		errors: [400, 403, 404]
+	},
+	{
+		method: 'get',
+		path: '/api/v1/calibrations/{id}',
+		operationId: 'getCalibration',
+		tag: 'Calibrations',
+		summary: 'Get a calibration and its fit report',
+		description:
+			'Model family and drag law, parameters with standard errors and 95 % intervals, correlation matrix, fitted pressure range, the model comparison (when chosen automatically), residual and cross-validated RMS per kind, noise floor, messages, sessions and exclusions.',
+		access: 'viewer',
+		parameters: [idParameter('calibration')],
+		responses: [{ status: 200, description: 'The calibration.', schema: 'Calibration' }],
+		errors: [404]
+	},
+	{
+		method: 'post',
+		path: '/api/v1/calibrations/{id}/approve',
+		operationId: 'approveCalibration',
+		tag: 'Calibrations',
+		summary: 'Approve a draft calibration',
+		description:
+			'In one transaction: the pair’s approved calibration becomes superseded, this draft approved, and the residuals of every session of the pair are recomputed under it. Audited. 409 when it is not a draft or cannot be approved (the fit did not converge, or the efficiency is not determined).',
+		access: 'lead',
+		parameters: [idParameter('calibration')],
+		responses: [{ status: 200, description: 'The approved calibration.', schema: 'ApprovedCalibration' }],
+		errors: [403, 404, 409]
 	}
 ];
 
@@ -700,7 +770,8 @@ const TAG_DESCRIPTIONS: Record<string, string> = {
 	'Range sessions': 'One sitting on one rig with one projectile, fixed geometry and conditions; open → closed.',
 	Shots: 'Logged shots with their predictions and residuals.',
 	Predictions: 'What the model says for a setup.',
-	Imports: 'Chronograph CSV files: checked row by row and imported in one transaction.'
+	Imports: 'Chronograph CSV files: checked row by row and imported in one transaction.',
+	Calibrations: 'Model fits of a (rig, projectile) pair: analysts fit drafts, leads approve them; everyone reads the fit reports.'
 };
 
 /** Words for fields whose schema has no title of its own (identifiers, flags, choices). */

@@ -58,7 +58,7 @@ export function crossValidate(
 			continue;
 		}
 		for (const s of test) {
-			const m = modelShot(config.model, s, fit.params, false);
+			const m = modelShot(config.model, s, fit.params, false, config.curves);
 			if (!m) {
 				unpredicted++;
 				continue;

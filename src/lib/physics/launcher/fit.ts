@@ -41,6 +41,7 @@ import {
 	type ShotSetup
 } from './model';
 import { dragStart, gasWorkStart, valveFlowStart, type StartNote, type StartShot } from './start';
+import { MuzzleCurves } from './muzzle-curves';
 import { parameterReports, type ParameterReport } from './identifiability';
 import { crossValidate, type CrossValidationReport } from './cross-validation';
 
@@ -334,19 +335,28 @@ export function modelShot(
 	model: LauncherModel,
 	shot: PreparedShot,
 	p: CalibrationParameters,
-	withDerivatives: boolean
+	withDerivatives: boolean,
+	curves?: MuzzleCurves
 ): ShotModel | null {
 	try {
+		const direct = (q: CalibrationParameters, fill: number) => {
+			const r = calibratedMuzzleSpeed(model, q, shot.setup, fill);
+			return r.ok ? r.speedMps : null;
+		};
+		const speedOf = curves ? (q: CalibrationParameters, fill: number) => {
+			const v = curves.speed(shot.setup, q, fill);
+			return v === undefined ? direct(q, fill) : v;
+		} : direct;
 		let v0: number;
 		let muzzle: ReturnType<typeof muzzleWithDerivatives> = null;
 		if (withDerivatives) {
-			muzzle = muzzleWithDerivatives(model, p, shot.setup);
+			muzzle = muzzleWithDerivatives(model, p, shot.setup, curves ? speedOf : undefined);
 			if (!muzzle) return null;
 			v0 = muzzle.speedMps;
 		} else {
-			const r = calibratedMuzzleSpeed(model, p, shot.setup, shot.setup.fillGaugePa);
-			if (!r.ok) return null;
-			v0 = r.speedMps;
+			const v = speedOf(p, shot.setup.fillGaugePa);
+			if (v === null) return null;
+			v0 = v;
 		}
 		const elevation = shot.setup.session.elevationDeg + p.elevationBiasDeg;
 		const drag = p.dragCoefficient;
@@ -427,6 +437,8 @@ export function prepareShots(shots: CalibrationShot[], sds: MeasurementSds): Pre
 
 export interface FitConfig {
 	model: LauncherModel;
+	/** Valve flow over large sessions: shared muzzle-speed curves (./muzzle-curves.ts). */
+	curves?: MuzzleCurves;
 	names: ParameterName[];
 	/** Values of the parameters that are held (and starting values of the fitted ones). */
 	base: CalibrationParameters;
@@ -525,7 +537,7 @@ export function fitCore(all: PreparedShot[], config: FitConfig, start: Calibrati
 	const shots: PreparedShot[] = [];
 	let models: ShotModel[] = [];
 	for (const s of all) {
-		const m = modelShot(config.model, s, params, true);
+		const m = modelShot(config.model, s, params, true, config.curves);
 		if (m) {
 			shots.push(s);
 			models.push(m);
@@ -559,7 +571,7 @@ export function fitCore(all: PreparedShot[], config: FitConfig, start: Calibrati
 		let jacobianProblem: string | null = null;
 		const evaluate = (x: number[], derivatives: boolean) => {
 			const p = withVector(config, x);
-			return { p, models: shots.map((s) => modelShot(config.model, s, p, derivatives)) };
+			return { p, models: shots.map((s) => modelShot(config.model, s, p, derivatives, config.curves)) };
 		};
 		ls = leastSquares({
 			start: vectorOf(config, params),
@@ -720,6 +732,7 @@ export function fitLauncher(shots: CalibrationShot[], sds: MeasurementSds, optio
 	requireFinite(base.elevationBiasDeg, 'start.elevationBiasDeg');
 	const config: FitConfig = {
 		model,
+		curves: model.family === 'valve-flow' ? new MuzzleCurves(model, prepared.map((s) => s.setup)) : undefined,
 		names,
 		base,
 		pressureSd: sds.pressurePa,

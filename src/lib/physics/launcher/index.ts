@@ -8,3 +8,4 @@ export * from './cross-validation';
 export * from './compare';
 export { valveFlowMuzzleSpeed, type ValveFlowInput, type ValveFlowOptions, type ValveFlowResult } from './valve-flow';
 export * from './campaigns';
+export * from './muzzle-curves';

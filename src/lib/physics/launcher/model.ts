@@ -297,7 +297,9 @@ export interface MuzzleDerivatives {
 export function muzzleWithDerivatives(
 	model: LauncherModel,
 	p: CalibrationParameters,
-	setup: ShotSetup
+	setup: ShotSetup,
+	/** Valve flow: the speed at (parameters, fill pressure), e.g. from a shared curve; default the ODE. */
+	speedOf?: (q: CalibrationParameters, fillGaugePa: number) => number | null
 ): (MuzzleOutcome & MuzzleDerivatives) | null {
 	const fill = setup.fillGaugePa;
 	if (model.family === 'gas-work') {
@@ -325,10 +327,12 @@ export function muzzleWithDerivatives(
 			perPressure: (energyPerPa - (0.5 * v0 * v0 * gasMassShare) / absolutePa) / mv
 		};
 	}
-	const speed = (q: CalibrationParameters, pressure: number) => {
-		const r = calibratedMuzzleSpeed(model, q, setup, pressure);
-		return r.ok ? r.speedMps : null;
-	};
+	const speed =
+		speedOf ??
+		((q: CalibrationParameters, pressure: number) => {
+			const r = calibratedMuzzleSpeed(model, q, setup, pressure);
+			return r.ok ? r.speedMps : null;
+		});
 	const v0 = speed(p, fill);
 	if (v0 === null) return null;
 	const hArea = VALVE_STEP_RELATIVE * p.valveAreaM2;

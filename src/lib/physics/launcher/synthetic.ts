@@ -9,6 +9,7 @@ import {
 	predictShot,
 	type CalibrationParameters,
 	type LauncherCalibration,
+	type LauncherModel,
 	type LauncherRig,
 	type Projectile,
 	type RangeConditions
@@ -16,6 +17,8 @@ import {
 
 export interface SyntheticCampaign {
 	truth: CalibrationParameters;
+	/** The model the truth is drawn from; default gas work with a constant C_D. */
+	model?: LauncherModel;
 	rig: LauncherRig;
 	projectile: Projectile;
 	sessions: RangeConditions[];
@@ -36,6 +39,7 @@ export function simulateCampaign(c: SyntheticCampaign): CalibrationShot[] {
 	const random = createRandom(c.seed);
 	const pressures = c.fillPressuresPa;
 	const truth: LauncherCalibration = {
+		model: c.model,
 		parameters: c.truth,
 		fitted: [],
 		identifiable: [],

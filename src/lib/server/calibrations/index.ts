@@ -567,7 +567,11 @@ export async function calibrationDetail(rigId: number, projectileId: number, cal
 			pRefPa: summary.pRefPa,
 			fillPressureRangePa: range,
 			measurementSds: summary.measurementSds,
-			crossValidation: summary.crossValidation
+			crossValidation: summary.crossValidation,
+			model: row.parameters.model ?? { family: 'gas-work' as const, drag: 'constant' as const },
+			comparison: summary.comparison ?? null,
+			failure: summary.failure ?? null,
+			unused: summary.unused ?? []
 		},
 		parameters,
 		correlation: {

@@ -16,19 +16,70 @@
 //   σ_x, σ_y. Residuals rather than raw impacts, so sweeps over fill pressure (whose mean impact
 //   moves with speed) still measure scatter about the predicted point.
 // A session contributes when it has at least two residuals of the kind (one degree of freedom).
+//
+// The gauge (physics.md §7): each sample also draws the error of setting and reading the fill
+// gauge, σ_p: the caller's figure, else the gauge SD the approved calibration was fitted with
+// (summary.measurementSds.pressurePa), else DEFAULT_GAUGE_SD_PA.
+//
+// Without an approved calibration the nominal η0 (rig) and C_D (projectile) are not estimates of
+// this pair: the Monte Carlo draws them with the wide UNCALIBRATED_SPREAD instead of a confident
+// zero, and says so in its notes.
 import { and, desc, eq, inArray, isNull } from 'drizzle-orm';
 import { airDensity } from '$lib/physics/air';
 import { chanceOfMeetingPlan, type ChanceResult, type PlanRequirements } from '$lib/physics/chance';
 import { PhysicsInputError } from '$lib/physics/errors';
-import { predictShot, type ShotSetup } from '$lib/physics/launcher';
+import { predictShot, type LauncherCalibration, type ParameterName, type ShotSetup } from '$lib/physics/launcher';
+import { DEFAULT_GAUGE_SD_PA } from '$lib/physics/solve';
 import { rangeSessions, shotPredictions, shots, testPlans } from '../db/schema';
 import { ReconcileError } from './errors';
-import { calibrationInForce, launcherProjectile, launcherRig, type Executor } from './model';
+import { calibrationInForce, launcherProjectile, launcherRig, summaryOf, type CalibrationInForce, type Executor } from './model';
 
 /** How many of the pair's most recent sessions the dispersion is estimated from. */
 export const DISPERSION_RECENT_SESSIONS = 10;
 /** Seed used when the caller gives none: the same setup then always shows the same chances. */
 export const DEFAULT_CHANCE_SEED = 20261202;
+
+/**
+ * One-SD spread of an uncalibrated model (relative for η0 and C_D, degrees for the elevation):
+ * nominal efficiencies of pneumatic launchers and drag coefficients of real projectiles are
+ * commonly off by this much (the demo lab's fits move η0 by 10–30 % from the rig's nominal value,
+ * and the campaigns' fitted C_D by 20–40 % from the nominal sphere value), so the chance drawn with
+ * it is a rough figure, stated as such.
+ */
+export const UNCALIBRATED_SPREAD = { efficiencyRelative: 0.15, dragRelative: 0.25, elevationDeg: 0.5 } as const;
+
+/** σ_p for a setup: the caller's, else the calibration's gauge SD, else DEFAULT_GAUGE_SD_PA. */
+export function gaugeSdFor(
+	inForce: Pick<CalibrationInForce, 'record'>,
+	given?: number
+): { gaugeSdPa: number; source: 'input' | 'calibration' | 'default' } {
+	if (given !== undefined) return { gaugeSdPa: given, source: 'input' };
+	const fromCalibration = inForce.record ? summaryOf(inForce.record).measurementSds?.pressurePa : undefined;
+	if (typeof fromCalibration === 'number' && Number.isFinite(fromCalibration) && fromCalibration >= 0)
+		return { gaugeSdPa: fromCalibration, source: 'calibration' };
+	return { gaugeSdPa: DEFAULT_GAUGE_SD_PA, source: 'default' };
+}
+
+/** The nominal model with the wide spread of UNCALIBRATED_SPREAD as its covariance. */
+export function uncalibratedSpread(model: LauncherCalibration): LauncherCalibration {
+	const p = model.parameters;
+	const sds: [ParameterName, number][] = [
+		['efficiency', UNCALIBRATED_SPREAD.efficiencyRelative * p.efficiency],
+		['dragCoefficient', UNCALIBRATED_SPREAD.dragRelative * p.dragCoefficient],
+		['elevationBias', UNCALIBRATED_SPREAD.elevationDeg]
+	];
+	return {
+		...model,
+		fitted: sds.map(([name]) => name),
+		identifiable: sds.map(() => true),
+		covariance: sds.map((_, i) => sds.map(([, sd], j) => (i === j ? sd * sd : 0)))
+	};
+}
+
+const UNCALIBRATED_NOTE =
+	`No approved calibration: the chance is drawn from the wide spread of an uncalibrated model ` +
+	`(nominal η0 ± ${UNCALIBRATED_SPREAD.efficiencyRelative * 100} %, C_D ± ${UNCALIBRATED_SPREAD.dragRelative * 100} %, ` +
+	`elevation ± ${UNCALIBRATED_SPREAD.elevationDeg}°, one SD), so it is a rough figure; calibrate the pair for a confident one.`;
 
 export interface SetupInput {
 	/** Fill pressure on the gauge, Pa. */
@@ -57,6 +108,8 @@ export interface ChanceForSetupInput {
 	setup: SetupInput;
 	seed?: number;
 	samples?: number;
+	/** SD of setting and reading the fill gauge, Pa; default gaugeSdFor (calibration, else 1 kPa). */
+	gaugeSdPa?: number;
 	/** Overrides of the estimated dispersion (e.g. for a rig without history). */
 	dispersion?: { speedSdMps?: number; impactSdM?: { x: number; y: number } };
 	recentSessions?: number;
@@ -74,15 +127,17 @@ export interface DispersionEstimate {
 	overridden: { speed: boolean; impact: boolean };
 }
 
+interface ChanceBasis {
+	calibrationId: number | null;
+	uncalibrated: boolean;
+	/** σ_p the samples drew the gauge error from, Pa, and where it came from. */
+	gaugeSdPa: number;
+	gaugeSdSource: 'input' | 'calibration' | 'default';
+}
+
 export type ChanceForSetup =
-	| {
-			ok: true;
-			chance: ChanceResult;
-			calibrationId: number | null;
-			uncalibrated: boolean;
-			dispersion: DispersionEstimate;
-	  }
-	| { ok: false; reason: string; calibrationId: number | null; uncalibrated: boolean; dispersion: DispersionEstimate | null };
+	| ({ ok: true; chance: ChanceResult; dispersion: DispersionEstimate } & ChanceBasis)
+	| ({ ok: false; reason: string; dispersion: DispersionEstimate | null } & ChanceBasis);
 
 /** Pooled within-group SD: √(Σ_g Σ_i (x − x̄_g)² / Σ_g (n_g − 1)); null when no group has 2 values. */
 export function pooledWithinSd(groups: readonly (readonly number[])[]): { sd: number | null; dof: number } {
@@ -167,7 +222,8 @@ export async function chanceOfMeetingPlanForSetup(tx: Executor, input: ChanceFor
 	if (targetDistanceM === undefined)
 		throw new ReconcileError('setup.targetDistanceM', 'Give the target distance of the setup.');
 	const inForce = await calibrationInForce(tx, input.rigId, input.projectileId);
-	const base = { calibrationId: inForce.calibrationId, uncalibrated: inForce.uncalibrated };
+	const gauge = gaugeSdFor(inForce, input.gaugeSdPa);
+	const base = { calibrationId: inForce.calibrationId, uncalibrated: inForce.uncalibrated, gaugeSdPa: gauge.gaugeSdPa, gaugeSdSource: gauge.source };
 
 	let setup: ShotSetup;
 	try {
@@ -183,6 +239,7 @@ export async function chanceOfMeetingPlanForSetup(tx: Executor, input: ChanceFor
 				aimHeightM: s.aimHeightM,
 				airDensityKgM3: airDensity({ temperatureC: s.temperatureC, pressurePa: s.pressurePa, relativeHumidity: s.relativeHumidity }),
 				ambientPa: s.pressurePa,
+				temperatureC: s.temperatureC,
 				wind: { xMps: s.windXMps ?? 0, zMps: s.windZMps ?? 0 }
 			}
 		};
@@ -216,14 +273,16 @@ export async function chanceOfMeetingPlanForSetup(tx: Executor, input: ChanceFor
 		};
 	try {
 		const chance = chanceOfMeetingPlan({
-			calibration: inForce.model,
+			calibration: inForce.uncalibrated ? uncalibratedSpread(inForce.model) : inForce.model,
 			setup,
 			plan: { speed: plan.speed, impactRadiusM: plan.impactRadiusM },
 			speedSdMps,
+			gaugeSdPa: gauge.gaugeSdPa,
 			impactSdM,
 			samples: input.samples,
 			seed: input.seed ?? DEFAULT_CHANCE_SEED
 		});
+		if (inForce.uncalibrated) chance.notes.unshift(UNCALIBRATED_NOTE);
 		return { ok: true, chance, ...base, dispersion };
 	} catch (e) {
 		if (e instanceof PhysicsInputError) {

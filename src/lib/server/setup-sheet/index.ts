@@ -4,16 +4,23 @@
 // predicted shot, its trajectory, the spread to expect and the chance of meeting the plan.
 // A fill above the rig's rated working pressure is never proposed: the sheet is refused instead.
 //
+// The sheet also says what the gauge's reading error σ_p does to the speed at the answer
+// (σ_v = |dv/dp|·σ_p, physics.md §4) and, when that alone spreads the speed beyond the plan's
+// tolerance, says so; the chance of meeting the plan draws the same gauge error (§7).
+//
 // Messages are for people and use the caller's display units (the numbers in the answer are SI).
 import { and, asc, desc, eq, isNotNull, isNull } from 'drizzle-orm';
 import { airDensity } from '$lib/physics/air';
 import { PhysicsInputError } from '$lib/physics/errors';
 import { exactCep } from '$lib/physics/stats/cep';
+import { gaugeSpread } from '$lib/physics/solve';
+import { modelOf, type CalibrationParameters, type LauncherModel } from '$lib/physics/launcher';
 import type { FlightPathPoint } from '$lib/physics/flight/driver';
 import { formatQuantity, type Prefs } from '$lib/format';
 import type { SetupSheetInput } from '$lib/schemas/setup-sheet';
 import { projectiles, rangeSessions, rigs, testPlans } from '../db/schema';
 import { calibrationInForce, chanceOfMeetingPlanForSetup, ReconcileError, STORED_KEY, type Executor } from '../reconcile';
+import { gaugeSdFor } from '../reconcile/chance';
 import { solveSetup, type SetupRefusalCode } from './solve';
 
 /** Within this fraction of the rating the sheet says the margin is small. */
@@ -38,9 +45,11 @@ export interface SetupSheet {
 		status: 'calibrated' | 'uncalibrated';
 		calibrationId: number | null;
 		approvedAt: Date | null;
+		/** Family and drag law of the model in force. */
+		model: LauncherModel;
 		/** Stored keys of the parameters the calibration fitted (eta0, dragCoefficient, …). */
 		fitted: string[];
-		parameters: { efficiency: number; pressureSlope: number; pRefPa: number; lossN: number; dragCoefficient: number; elevationBiasDeg: number };
+		parameters: CalibrationParameters;
 		/** Fill pressures the calibration was fitted over; null for nominal values. */
 		fittedPressureRangePa: { min: number; max: number } | null;
 		note: string;
@@ -50,7 +59,8 @@ export interface SetupSheet {
 		fillGaugePa: number;
 		marginPa: number;
 		elevationDeg: number;
-		efficiency: number;
+		/** η at the fill (gas work); null for valve flow. */
+		efficiency: number | null;
 		muzzleSpeedMps: number;
 		/** Speed where the flight meets the target plane. */
 		targetSpeedMps: number;
@@ -58,6 +68,22 @@ export interface SetupSheet {
 		/** Impact relative to the aim point: lateralM + to the right, heightM + up. */
 		impact: { lateralM: number; heightM: number; heightAboveGroundM: number };
 		outsideCalibratedPressures: boolean;
+		/** dv/dp of the plan's speed (at the muzzle or the target) at the fill, m/s per Pa. */
+		speedPerPressureMpsPerPa: number;
+		/** dv0/dp of the muzzle speed at the fill, m/s per Pa. */
+		muzzleSpeedPerPressureMpsPerPa: number;
+		/** What the gauge's setting/reading error does to the plan's speed at this fill. */
+		gauge: {
+			/** σ_p, Pa, and where it came from (the request, the calibration's gauge SD, or 1 kPa). */
+			sdPa: number;
+			sdSource: 'input' | 'calibration' | 'default';
+			/** σ_v = |dv/dp|·σ_p, m/s. */
+			speedSdMps: number;
+			/** P(|δv| ≤ tolerance) from the gauge error alone: 2Φ(tol/σ_v) − 1. */
+			withinToleranceProbability: number;
+			/** ±1.96 σ_v exceeds ±tolerance: the gauge alone puts more than 1 shot in 20 outside. */
+			exceedsTolerance: boolean;
+		};
 	};
 	trajectory: FlightPathPoint[];
 	/** The scatter the chance was computed with: the pair's recent residuals (pooled within sessions). */
@@ -68,7 +94,18 @@ export interface SetupSheet {
 		cepM: number | null;
 		sessions: number;
 	};
-	chance: { speed: Chance | null; impact: Chance | null; both: Chance | null; samples: number; seed: number; failedSamples: number } | null;
+	chance: {
+		speed: Chance | null;
+		impact: Chance | null;
+		both: Chance | null;
+		samples: number;
+		seed: number;
+		failedSamples: number;
+		/** The gauge SD the samples drew from, Pa. */
+		gaugeSdPa: number;
+		/** True when drawn from the wide spread of an uncalibrated model (no approved calibration). */
+		uncalibratedSpread: boolean;
+	} | null;
 	/** Why there is no chance figure (e.g. no history of the pair to estimate its scatter from). */
 	chanceNote: string | null;
 	warnings: string[];
@@ -98,6 +135,7 @@ export async function setupSheet(tx: Executor, input: SetupSheetInput, prefs: Pr
 	const targetDistanceM = input.targetDistanceM ?? plan.targetDistanceM;
 	const toleranceMps = (plan.requiredSpeedMps * plan.speedTolerancePct) / 100;
 	const wind = { xMps: input.windXMps, zMps: input.windZMps };
+	const gauge = gaugeSdFor(inForce, input.gaugeSdPa);
 
 	let airDensityKgM3: number;
 	try {
@@ -118,6 +156,7 @@ export async function setupSheet(tx: Executor, input: SetupSheetInput, prefs: Pr
 			azimuthDeg: input.azimuthDeg,
 			airDensityKgM3,
 			ambientPa: input.pressurePa,
+			temperatureC: input.temperatureC,
 			wind
 		}
 	});
@@ -125,7 +164,23 @@ export async function setupSheet(tx: Executor, input: SetupSheetInput, prefs: Pr
 		const needed = `${q('speed', plan.requiredSpeedMps)} ${plan.speedAt === 'muzzle' ? 'at the muzzle' : 'at the target'}`;
 		const rating = `${rig.name}’s rated working pressure of ${q('pressure', rig.ratedPressurePa)}`;
 		const gives = solution.speedAtRatedMps === null ? '' : ` (the rating gives ${q('speed', solution.speedAtRatedMps)})`;
+		const peak = solution.peak;
 		switch (solution.code) {
+			case 'beyond-curve-peak':
+				return {
+					ok: false,
+					code: solution.code,
+					field: 'testPlanId',
+					message: `Refused: ${needed} is out of reach for ${rig.name} with this calibration. Its predicted speed rises to at most ${q('speed', peak?.speedMps)} at a fill of ${q('pressure', peak?.fillGaugePa)} and falls at higher fills, up to the rated ${q('pressure', rig.ratedPressurePa)}; choose a slower plan, a lighter projectile or another rig.`
+				};
+			case 'efficiency-out-of-range':
+			case 'below-curve':
+				return {
+					ok: false,
+					code: solution.code,
+					field: 'testPlanId',
+					message: `Refused: ${needed} is below what the calibration predicts for ${rig.name} at any fill it covers. ${solution.reason}`
+				};
 			case 'above-rated-pressure':
 				return {
 					ok: false,
@@ -165,6 +220,7 @@ export async function setupSheet(tx: Executor, input: SetupSheetInput, prefs: Pr
 			windXMps: input.windXMps,
 			windZMps: input.windZMps
 		},
+		gaugeSdPa: gauge.gaugeSdPa,
 		samples: input.samples,
 		seed: input.seed
 	});
@@ -180,6 +236,12 @@ export async function setupSheet(tx: Executor, input: SetupSheetInput, prefs: Pr
 		);
 	if (solution.marginPa < SMALL_MARGIN_FRACTION * rig.ratedPressurePa)
 		warnings.push(`The fill is within ${SMALL_MARGIN_FRACTION * 100} % of the rated working pressure (${q('pressure', rig.ratedPressurePa)}): check the relief valve setting.`);
+	const judged = plan.speedAt === 'muzzle' ? 'muzzle speed' : 'speed at the target';
+	const spread = gaugeSpread(solution.speedPerPressureMpsPerPa, gauge.gaugeSdPa, toleranceMps);
+	if (spread.exceedsTolerance)
+		warnings.push(
+			`The gauge alone spreads the ${judged} beyond the plan’s tolerance: at this fill the ${judged} moves ${q('speed', solution.speedPerPressureMpsPerPa * 1000)} per kPa, so a gauge error of ${q('pressure', gauge.gaugeSdPa)} (1 SD) moves it by ${q('speed', spread.speedSdMps)} (1 SD), and by itself only ${(100 * spread.withinToleranceProbability).toFixed(0)} % of shots would be within ± ${q('speed', toleranceMps)}. Use a finer gauge or set the fill more carefully.`
+		);
 	if (chance.ok) for (const note of chance.chance.notes) if (!p.warnings.includes(note)) warnings.push(note);
 
 	const parameters = inForce.model.parameters;
@@ -202,6 +264,7 @@ export async function setupSheet(tx: Executor, input: SetupSheetInput, prefs: Pr
 				status: inForce.uncalibrated ? 'uncalibrated' : 'calibrated',
 				calibrationId: inForce.calibrationId,
 				approvedAt: inForce.approvedAt,
+				model: modelOf(inForce.model),
 				fitted: inForce.model.fitted.map((n) => STORED_KEY[n]),
 				parameters: { ...parameters },
 				fittedPressureRangePa: fittedRange,
@@ -219,7 +282,16 @@ export async function setupSheet(tx: Executor, input: SetupSheetInput, prefs: Pr
 				targetSpeedMps: p.impact.speedMps,
 				flightTimeS: p.impact.timeS,
 				impact: { lateralM: p.impact.lateralM, heightM: p.impact.heightM, heightAboveGroundM: p.impact.heightAboveGroundM },
-				outsideCalibratedPressures: p.outsideCalibratedPressures
+				outsideCalibratedPressures: p.outsideCalibratedPressures,
+				speedPerPressureMpsPerPa: solution.speedPerPressureMpsPerPa,
+				muzzleSpeedPerPressureMpsPerPa: solution.muzzleSpeedPerPressureMpsPerPa,
+				gauge: {
+					sdPa: gauge.gaugeSdPa,
+					sdSource: gauge.source,
+					speedSdMps: spread.speedSdMps,
+					withinToleranceProbability: spread.withinToleranceProbability,
+					exceedsTolerance: spread.exceedsTolerance
+				}
 			},
 			trajectory: solution.trajectory,
 			spread: {
@@ -235,7 +307,9 @@ export async function setupSheet(tx: Executor, input: SetupSheetInput, prefs: Pr
 						both: chance.chance.both,
 						samples: chance.chance.samples,
 						seed: chance.chance.seed,
-						failedSamples: chance.chance.failedSamples
+						failedSamples: chance.chance.failedSamples,
+						gaugeSdPa: chance.chance.gaugeSdPa,
+						uncalibratedSpread: chance.uncalibrated
 					}
 				: null,
 			chanceNote: chance.ok ? null : chance.reason,

@@ -1,25 +1,32 @@
 // Solving a setup sheet (shared/design/physics.md §4): the fill pressure that gives the plan's
 // speed (at the muzzle or at the target plane) and the elevation that puts the shot on the aim
-// point, under a calibration (or the nominal values). Pure: no database, so it is unit-tested on
-// its own; setup-sheet/index.ts feeds it from the registry.
+// point, under a calibration of either family and either drag law (or the nominal values). Pure:
+// no database, so it is unit-tested on its own; setup-sheet/index.ts feeds it from the registry.
 //
 // The two unknowns are coupled when the speed is judged at the target: the speed at the plane
 // depends a little on the path (hence on the elevation), and the elevation on the muzzle speed.
-// Fixed-point iteration: solve the fill pressure at the current elevation (solveFillPressure,
-// Brent), then the low-arc elevation for the resulting muzzle speed (solveElevation), until the
-// elevation stops moving. The coupling is weak (a degree of elevation changes the path length by
-// a fraction of a per mille), so two or three rounds settle it; a speed at the muzzle needs one.
-// The calibrated elevation bias δθ is added to the set elevation in every flight (as predictShot
-// does), so the sheet gives the elevation to set on the rig's scale.
+// Fixed-point iteration: solve the fill pressure at the current elevation (solveFillPressure: a
+// scan of [0, rated] and Brent for the LOWEST pressure, the curve's peak when none reaches the
+// speed), then the low-arc elevation for the resulting muzzle speed under the calibration's drag
+// law (solveCalibratedElevation), until the elevation stops moving. The coupling is weak (a degree
+// of elevation changes the path length by a fraction of a per mille), so two or three rounds
+// settle it; a speed at the muzzle needs one. The calibrated elevation bias δθ is added to the set
+// elevation in every flight (as predictShot does), so the sheet gives the elevation to set on the
+// rig's scale.
 import {
 	flightPath,
+	modelOf,
 	predictShot,
-	solveElevation,
+	solveCalibratedElevation,
 	solveFillPressure,
+	sutherlandViscosity,
+	temperatureKOf,
+	type CurvePeak,
 	type FillPressureFailure,
 	type FlightPathPoint,
 	type LauncherCalibration,
 	type LauncherRig,
+	type PlannedShot,
 	type Projectile,
 	type ShotPrediction
 } from '$lib/physics';
@@ -44,6 +51,8 @@ export interface SetupProblem {
 		airDensityKgM3: number;
 		/** Barometric pressure, Pa. */
 		ambientPa: number;
+		/** Air temperature, °C (valve-flow gas temperature, sphere-law viscosity); default 15 °C. */
+		temperatureC?: number;
 		wind: { xMps: number; zMps: number };
 	};
 }
@@ -60,6 +69,10 @@ export type SetupSolution =
 			elevationDeg: number;
 			/** The prediction at the solved fill pressure and elevation (predictShot). */
 			prediction: ShotPrediction;
+			/** dv/dp of the plan's speed (muzzle or target) at the fill, m/s per Pa. */
+			speedPerPressureMpsPerPa: number;
+			/** dv0/dp of the muzzle speed at the fill, m/s per Pa. */
+			muzzleSpeedPerPressureMpsPerPa: number;
 			trajectory: FlightPathPoint[];
 			rounds: number;
 	  }
@@ -70,27 +83,14 @@ export type SetupSolution =
 			reason: string;
 			/** The speed the plan judges (muzzle or target) at the rated pressure, when it can be predicted. */
 			speedAtRatedMps: number | null;
+			/** The curve's highest judged speed over [0, rated] and where, when it was located. */
+			peak: CurvePeak | null;
 	  };
 
-function shotFor(p: SetupProblem, elevationDeg: number) {
-	const { range, plan, projectile, calibration } = p;
+function plannedShot(p: SetupProblem, elevationDeg: number): PlannedShot {
 	return {
-		elevationDeg: elevationDeg + calibration.parameters.elevationBiasDeg,
-		azimuthDeg: range.azimuthDeg,
-		launchHeightM: range.launchHeightM,
-		targetDistanceM: plan.targetDistanceM,
-		diameterM: projectile.diameterM,
-		dragCoefficient: calibration.parameters.dragCoefficient,
-		airDensityKgM3: range.airDensityKgM3,
-		wind: range.wind
-	};
-}
-
-function predictAt(p: SetupProblem, fillGaugePa: number, elevationDeg: number) {
-	return predictShot(p.calibration, {
 		rig: p.rig,
 		projectile: p.projectile,
-		fillGaugePa,
 		session: {
 			targetDistanceM: p.plan.targetDistanceM,
 			elevationDeg,
@@ -99,9 +99,14 @@ function predictAt(p: SetupProblem, fillGaugePa: number, elevationDeg: number) {
 			aimHeightM: p.range.aimHeightM,
 			airDensityKgM3: p.range.airDensityKgM3,
 			ambientPa: p.range.ambientPa,
+			temperatureC: p.range.temperatureC,
 			wind: p.range.wind
 		}
-	});
+	};
+}
+
+function predictAt(p: SetupProblem, fillGaugePa: number, elevationDeg: number) {
+	return predictShot(p.calibration, { ...plannedShot(p, elevationDeg), fillGaugePa });
 }
 
 /** The judged speed at the rated pressure, to say how far short the rig falls. */
@@ -118,52 +123,26 @@ function speedAtRated(p: SetupProblem, elevationDeg: number): number | null {
 
 /** Solve the fill pressure and elevation for the plan; refuse anything above the rated pressure. */
 export function solveSetup(p: SetupProblem): SetupSolution {
-	const c = p.calibration.parameters;
-	const efficiency =
-		c.pressureSlope === 0
-			? c.efficiency
-			: { eta0: c.efficiency, eta1: c.pressureSlope, pRefPa: c.pRefPa };
-	const launcher = {
-		ambientPa: p.range.ambientPa,
-		reservoirM3: p.rig.reservoirM3,
-		deadM3: p.rig.deadM3,
-		boreDiameterM: p.rig.boreDiameterM,
-		travelM: p.rig.travelM,
-		massKg: p.projectile.massKg,
-		lossN: c.lossN,
-		polytropicIndex: p.rig.polytropicIndex,
-		gasInertia: p.rig.gasInertia,
-		efficiency
-	};
 	let elevationDeg = 0;
 	let settledAt = 0;
 	let fillGaugePa = NaN;
+	let perPressure = { judged: NaN, muzzle: NaN };
 	for (let round = 1; round <= MAX_ROUNDS; round++) {
 		const fill = solveFillPressure({
-			...launcher,
+			calibration: p.calibration,
+			shot: plannedShot(p, elevationDeg),
+			at: p.plan.speedAt,
 			requiredSpeedMps: p.plan.requiredSpeedMps,
-			ratedPressurePa: p.rig.ratedPressurePa,
-			...(p.plan.speedAt === 'muzzle' ? { at: 'muzzle' as const } : { at: 'target' as const, shot: shotFor(p, elevationDeg) })
+			ratedPressurePa: p.rig.ratedPressurePa
 		});
-		if (!fill.ok) return { ok: false, code: fill.code, reason: fill.reason, speedAtRatedMps: speedAtRated(p, elevationDeg) };
+		if (!fill.ok)
+			return { ok: false, code: fill.code, reason: fill.reason, speedAtRatedMps: speedAtRated(p, elevationDeg), peak: fill.peak };
 		fillGaugePa = fill.fillGaugePa;
-		const shot = shotFor(p, 0);
-		const aim = solveElevation({
-			speedMps: fill.muzzleSpeedMps,
-			azimuthDeg: shot.azimuthDeg,
-			launchHeightM: shot.launchHeightM,
-			targetDistanceM: shot.targetDistanceM,
-			massKg: p.projectile.massKg,
-			diameterM: shot.diameterM,
-			dragCoefficient: shot.dragCoefficient,
-			airDensityKgM3: shot.airDensityKgM3,
-			wind: shot.wind,
-			aimHeightM: p.range.aimHeightM
-		});
-		if (!aim.ok) return { ok: false, code: 'no-elevation', reason: aim.reason, speedAtRatedMps: null };
-		const next = aim.elevationDeg - c.elevationBiasDeg;
-		const moved = Math.abs(next - elevationDeg);
-		elevationDeg = next;
+		perPressure = { judged: fill.speedPerPressureMpsPerPa, muzzle: fill.muzzleSpeedPerPressureMpsPerPa };
+		const aim = solveCalibratedElevation(p.calibration, plannedShot(p, 0), fill.muzzleSpeedMps);
+		if (!aim.ok) return { ok: false, code: 'no-elevation', reason: aim.reason, speedAtRatedMps: null, peak: null };
+		const moved = Math.abs(aim.elevationDeg - elevationDeg);
+		elevationDeg = aim.elevationDeg;
 		if (p.plan.speedAt === 'muzzle' || moved < ELEVATION_SETTLED_DEG) {
 			settledAt = round;
 			break;
@@ -174,14 +153,30 @@ export function solveSetup(p: SetupProblem): SetupSolution {
 			ok: false,
 			code: 'not-settled',
 			reason: `The fill pressure and elevation did not settle in ${MAX_ROUNDS} rounds.`,
-			speedAtRatedMps: null
+			speedAtRatedMps: null,
+			peak: null
 		};
 
 	const prediction = predictAt(p, fillGaugePa, elevationDeg);
-	if (!prediction.ok) return { ok: false, code: 'not-predicted', reason: prediction.reason, speedAtRatedMps: null };
-	const shot = shotFor(p, elevationDeg);
+	if (!prediction.ok) return { ok: false, code: 'not-predicted', reason: prediction.reason, speedAtRatedMps: null, peak: null };
+	const c = p.calibration.parameters;
+	const shot = plannedShot(p, elevationDeg);
 	const path = flightPath(
-		{ ...shot, speedMps: prediction.muzzleSpeedMps, massKg: p.projectile.massKg },
+		{
+			speedMps: prediction.muzzleSpeedMps,
+			elevationDeg: elevationDeg + c.elevationBiasDeg,
+			azimuthDeg: p.range.azimuthDeg,
+			launchHeightM: p.range.launchHeightM,
+			targetDistanceM: p.plan.targetDistanceM,
+			massKg: p.projectile.massKg,
+			diameterM: p.projectile.diameterM,
+			dragCoefficient: c.dragCoefficient,
+			airDensityKgM3: p.range.airDensityKgM3,
+			wind: p.range.wind,
+			...(modelOf(p.calibration).drag === 'sphere'
+				? { dragLaw: { kind: 'sphere' as const, dynamicViscosityPaS: sutherlandViscosity(temperatureKOf(shot.session)) } }
+				: {})
+		},
 		{ samples: TRAJECTORY_SAMPLES }
 	);
 	return {
@@ -190,6 +185,8 @@ export function solveSetup(p: SetupProblem): SetupSolution {
 		marginPa: p.rig.ratedPressurePa - fillGaugePa,
 		elevationDeg,
 		prediction,
+		speedPerPressureMpsPerPa: perPressure.judged,
+		muzzleSpeedPerPressureMpsPerPa: perPressure.muzzle,
 		trajectory: path.points,
 		rounds: settledAt
 	};

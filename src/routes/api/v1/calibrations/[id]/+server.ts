@@ -1,0 +1,4 @@
+import { calibrationApi } from '$lib/server/calibrations/api';
+import type { RequestHandler } from './$types';
+
+export const GET: RequestHandler = calibrationApi.get;
