@@ -1,7 +1,7 @@
 import { errorFunction } from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
 import { chanceOfMeetingPlan } from './chance';
-import { predictShot, type LauncherCalibration, type ShotSetup } from './launcher';
+import { muzzleWithDerivatives, predictShot, type LauncherCalibration, type ShotSetup } from './launcher';
 
 const setupBase: ShotSetup = {
 	rig: { reservoirM3: 1e-3, deadM3: 0, boreDiameterM: 0.025, travelM: 1 },
@@ -67,6 +67,7 @@ describe('chanceOfMeetingPlan', () => {
 				setup,
 				plan: { impactRadiusM: radius },
 				speedSdMps: 0.5,
+				gaugeSdPa: 0,
 				impactSdM: { x: sigma, y: sigma },
 				samples: 20_000,
 				seed: 11
@@ -92,6 +93,7 @@ describe('chanceOfMeetingPlan', () => {
 			setup,
 			plan: { speed: { targetMps: target, toleranceMps: tol, at: 'muzzle' } },
 			speedSdMps: sd,
+			gaugeSdPa: 0,
 			impactSdM: { x: sigma, y: sigma },
 			samples: 20_000,
 			seed: 5
@@ -117,6 +119,7 @@ describe('chanceOfMeetingPlan', () => {
 			setup,
 			plan: { speed: { targetMps: nominal.impact.speedMps, toleranceMps: tol, at: 'target' } },
 			speedSdMps: sd,
+			gaugeSdPa: 0,
 			impactSdM: { x: sigma, y: sigma },
 			samples: 20_000,
 			seed: 6
@@ -134,6 +137,7 @@ describe('chanceOfMeetingPlan', () => {
 			setup,
 			plan: { speed: { targetMps: nominal.muzzleSpeedMps, toleranceMps: 0.5, at: 'muzzle' }, impactRadiusM: sigma * 1.5 },
 			speedSdMps: 0.5,
+			gaugeSdPa: 0,
 			impactSdM: { x: sigma, y: sigma },
 			samples: 20_000,
 			seed: 8
@@ -151,7 +155,7 @@ describe('chanceOfMeetingPlan', () => {
 			[0, 0, 0.005 ** 2]
 		]);
 		const plan = { speed: { targetMps: nominal.muzzleSpeedMps, toleranceMps: 0.5, at: 'muzzle' as const } };
-		const args = { setup, plan, speedSdMps: 0.3, impactSdM: { x: sigma, y: sigma }, samples: 20_000, seed: 3 };
+		const args = { setup, plan, speedSdMps: 0.3, gaugeSdPa: 0, impactSdM: { x: sigma, y: sigma }, samples: 20_000, seed: 3 };
 		const sure = chanceOfMeetingPlan({ ...args, calibration: exact });
 		const unsure = chanceOfMeetingPlan({ ...args, calibration: uncertain });
 		// v ∝ √(η W − W_atm): ∂v/∂η = W/(m v); W from the energy balance ½ m v² = η W − W_atm.
@@ -174,6 +178,7 @@ describe('chanceOfMeetingPlan', () => {
 			setup,
 			plan: { speed: { targetMps: 90, toleranceMps: 2, at: 'target' as const }, impactRadiusM: 0.03 },
 			speedSdMps: 0.5,
+			gaugeSdPa: 0,
 			impactSdM: { x: 0.015, y: 0.02 },
 			samples: 2000
 		};
@@ -191,11 +196,77 @@ describe('chanceOfMeetingPlan', () => {
 			setup,
 			plan: { impactRadiusM: 0.05 },
 			speedSdMps: 0.5,
+			gaugeSdPa: 0,
 			impactSdM: { x: sigma, y: sigma },
 			samples: 500,
 			seed: 1
 		});
 		expect(r.notes.join(' ')).toMatch(/dragCoefficient was not determined/);
 		expect(r.impact!.probability).toBeGreaterThan(0);
+	});
+
+	describe('the gauge error (physics.md §7)', () => {
+		const nominal = predictShot(exact, setup);
+		if (!nominal.ok) throw new Error(nominal.reason);
+		const slope = muzzleWithDerivatives({ family: 'gas-work', drag: 'constant' }, exact.parameters, setup)!.perPressure;
+
+		it('only gauge noise on a (locally) linear speed–pressure curve: P(|v − v_req| ≤ tol) = 2Φ(tol/σ_v) − 1 with σ_v = |dv/dp|·σ_p (normal rule) within 4 MC standard errors', () => {
+			const gaugeSdPa = 10_000;
+			const sv = Math.abs(slope) * gaugeSdPa;
+			// Curvature of v(p) over ±4σ_p moves v by ~1e-3 of σ_v here: the relation is linear to well within the MC error.
+			const tol = 0.8;
+			const r = chanceOfMeetingPlan({
+				calibration: exact,
+				setup,
+				plan: { speed: { targetMps: nominal.muzzleSpeedMps, toleranceMps: tol, at: 'muzzle' } },
+				speedSdMps: 0,
+				gaugeSdPa,
+				impactSdM: { x: sigma, y: sigma },
+				samples: 20_000,
+				seed: 12
+			});
+			expect(r.gaugeSdPa).toBe(gaugeSdPa);
+			const expected = 2 * phi(tol / sv) - 1;
+			expect(expected).toBeGreaterThan(0.3);
+			expect(expected).toBeLessThan(0.9);
+			expect(Math.abs(r.speed!.probability - expected)).toBeLessThan(4 * r.speed!.standardError);
+		});
+
+		it('a steep curve: 1.7 m/s of speed per gauge SD, ±5 % of 70 m/s, no longer claims 99 % (lower than without the gauge)', () => {
+			// σ_p chosen so that |dv/dp|·σ_p = 1.7 m/s (the 1.7 m/s per kPa with a 1 kPa gauge); tolerance 3.5 m/s.
+			const gaugeSdPa = 1.7 / Math.abs(slope);
+			const args = {
+				calibration: exact,
+				setup,
+				plan: { speed: { targetMps: nominal.muzzleSpeedMps, toleranceMps: 3.5, at: 'muzzle' as const } },
+				speedSdMps: 0.3,
+				impactSdM: { x: sigma, y: sigma },
+				samples: 20_000,
+				seed: 21
+			};
+			const without = chanceOfMeetingPlan({ ...args, gaugeSdPa: 0 });
+			const withGauge = chanceOfMeetingPlan({ ...args, gaugeSdPa });
+			expect(without.speed!.probability).toBeGreaterThan(0.99);
+			expect(withGauge.speed!.probability).toBeLessThan(0.97);
+			expect(withGauge.speed!.probability).toBeLessThan(without.speed!.probability);
+			// Independent normal errors add in quadrature: σ = √(0.3² + 1.7²).
+			const expected = 2 * phi(3.5 / Math.hypot(0.3, 1.7)) - 1;
+			expect(Math.abs(withGauge.speed!.probability - expected)).toBeLessThan(4 * withGauge.speed!.standardError);
+		});
+
+		it('moves the impact with the speed: a wide gauge error lowers the impact chance too', () => {
+			const args = {
+				calibration: exact,
+				setup,
+				plan: { impactRadiusM: 1.5 * sigma },
+				speedSdMps: 0.3,
+				impactSdM: { x: sigma, y: sigma },
+				samples: 5000,
+				seed: 4
+			};
+			const without = chanceOfMeetingPlan({ ...args, gaugeSdPa: 0 });
+			const withGauge = chanceOfMeetingPlan({ ...args, gaugeSdPa: 50_000 });
+			expect(withGauge.impact!.probability).toBeLessThan(without.impact!.probability);
+		});
 	});
 });

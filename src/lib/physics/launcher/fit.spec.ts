@@ -154,7 +154,19 @@ describe('fitLauncher: recovery of known parameters from simulated campaigns', (
 		expect(fit.chiSquare).toBeLessThan(1e-6);
 	});
 
-	it('pressure slope η1 and loss force F: recovered, and p_ref is the mean fill pressure', () => {
+	it('a negative energy term is recovered as negative, never clamped at 0 (physics.md §1: E has either sign)', () => {
+		const truth = { ...TRUTH, energyOffsetJ: -25 };
+		const shots = campaign({ truth, shotsPerSession: 30, fillPressuresPa: [2e5, 3e5, 4e5, 5e5, 6e5, 7e5, 8e5] });
+		const fit = fitLauncher(shots, NOISE, { energyOffset: true, elevationBias: true, crossValidation: false });
+		expect(fit.converged, fit.message).toBe(true);
+		const e = fit.parameters.find((p) => p.name === 'energyOffset')!;
+		expect(e.atBound).toBeNull();
+		expect(e.unit).toBe('J');
+		expect(Math.abs(e.value - -25) / e.standardError).toBeLessThan(3);
+		expect(e.confidence95.upper).toBeLessThan(0);
+	});
+
+	it('pressure slope η1 and energy term E: recovered, and p_ref is the mean fill pressure', () => {
 		const truth = { ...TRUTH, pressureSlope: -0.06, energyOffsetJ: 3 };
 		const shots = campaign({ truth, shotsPerSession: 30, fillPressuresPa: [2e5, 3e5, 4e5, 5e5, 6e5, 7e5, 8e5] });
 		const fit = fitLauncher(shots, NOISE, { pressureSlope: true, energyOffset: true, elevationBias: true });
