@@ -556,8 +556,18 @@ export async function calibrationExclusionsOf(tx: Executor, calibrationId: numbe
 function approvalBlocker(row: CalibrationRow): string | null {
 	const summary = summaryOf(row);
 	if (summary.converged === false) return 'This fit did not converge; fit again before approving.';
-	if (row.standardErrors.eta0 === null || row.standardErrors.eta0 === undefined)
-		return 'The efficiency is not determined by this fit; it cannot be approved.';
+	// The family's own parameters must be determined: a muzzle speed resting on an undetermined
+	// number would mean nothing. (Optional terms that were not determined were held, not fitted.)
+	const core: { key: StoredParameterKey; label: string }[] =
+		row.parameters.model?.family === 'valve-flow'
+			? [
+					{ key: 'valveAreaM2', label: 'valve area' },
+					{ key: 'openingTimeS', label: 'valve opening time' }
+				]
+			: [{ key: 'eta0', label: 'efficiency' }];
+	for (const { key, label } of core)
+		if (row.standardErrors[key] === null || row.standardErrors[key] === undefined)
+			return `The ${label} is not determined by this fit; it cannot be approved.`;
 	return null;
 }
 
