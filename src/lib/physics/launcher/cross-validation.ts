@@ -4,7 +4,8 @@
 // fit (η0 + η1(p − p_ref)/p_ref spans the same lines for any p_ref, so predictions do not depend
 // on it).
 
-import { isPhysicsInputError, type CalibrationParameters, type ObservationKind } from './model';
+import { PhysicsInputError } from '../errors';
+import type { CalibrationParameters, ObservationKind } from './model';
 import { fitCore, modelShot, rms, type CoreFit, type FitConfig, type PerKind, type PreparedShot } from './fit';
 
 export interface CrossValidationReport {
@@ -47,7 +48,7 @@ export function crossValidate(
 		try {
 			fit = fitCore(train, { ...config, base: full }, full);
 		} catch (e) {
-			if (isPhysicsInputError(e)) {
+			if (e instanceof PhysicsInputError) {
 				failedFolds++;
 				continue;
 			}

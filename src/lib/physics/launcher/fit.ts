@@ -27,7 +27,6 @@ import {
 	PARAMETER_FIELD,
 	calibratedMuzzleSpeed,
 	flyUnder,
-	isPhysicsInputError,
 	muzzleWithDerivatives,
 	neutralParameters,
 	type CalibrationParameters,
@@ -40,7 +39,7 @@ import {
 	type RangeConditions,
 	type ShotSetup
 } from './model';
-import { dragStart, gasWorkStart, valveFlowStart, type StartNote, type StartShot } from './start';
+import { dragStart, gasWorkStart, valveFlowStart, type StartShot } from './start';
 import { MuzzleCurves } from './muzzle-curves';
 import { parameterReports, type ParameterReport } from './identifiability';
 import { crossValidate, type CrossValidationReport } from './cross-validation';
@@ -382,7 +381,7 @@ export function modelShot(
 		};
 		return out;
 	} catch (e) {
-		if (isPhysicsInputError(e)) return null;
+		if (e instanceof PhysicsInputError) return null;
 		throw e;
 	}
 }
@@ -765,7 +764,7 @@ export function fitLauncher(shots: CalibrationShot[], sds: MeasurementSds, optio
 		OBSERVATION_KINDS.map((kind) => [kind, used.reduce((n, s) => n + s.observations.filter((o) => o.kind === kind).length, 0)])
 	) as Record<ObservationKind, number>;
 
-	const reports = parameterReports(model, names, ls, used, models, params);
+	const reports = parameterReports(model, names, ls, used);
 	const identifiable = reports.map((r) => r.identifiable);
 	const covariance = ls.covariance.map((row, a) => row.map((c, b) => (identifiable[a] && identifiable[b] ? c : a === b ? Infinity : NaN)));
 	const correlation = ls.correlation.map((row, a) => row.map((c, b) => (identifiable[a] && identifiable[b] ? c : NaN)));
@@ -823,4 +822,3 @@ export function fitLauncher(shots: CalibrationShot[], sds: MeasurementSds, optio
 	};
 }
 
-export type { StartNote };

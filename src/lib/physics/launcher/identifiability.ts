@@ -9,8 +9,8 @@
 
 import type { LeastSquaresResult } from '../fit/least-squares';
 import { muzzleSpeed } from '../internal';
-import { PARAMETER_LABELS, dragLabel, type CalibrationParameters, type LauncherModel, type ParameterName } from './model';
-import type { PreparedShot, ShotModel } from './fit';
+import { PARAMETER_LABELS, dragLabel, type LauncherModel, type ParameterName } from './model';
+import type { PreparedShot } from './fit';
 
 export interface ParameterReport {
 	name: ParameterName;
@@ -71,9 +71,7 @@ export function parameterReports(
 	model: LauncherModel,
 	names: ParameterName[],
 	ls: LeastSquaresResult,
-	shots: PreparedShot[],
-	_models: ShotModel[],
-	_params: CalibrationParameters
+	shots: PreparedShot[]
 ): ParameterReport[] {
 	const hasFlightData = shots.some((s) => s.observations.some((o) => o.kind !== 'muzzleSpeed'));
 	const hasImpacts = shots.some((s) => s.observations.some((o) => o.kind === 'impactHeight'));

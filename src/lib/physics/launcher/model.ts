@@ -13,7 +13,7 @@
 // Flight, two drag laws: a constant C_D, or a factor on the Morrison sphere correlation C_D(Re)
 // with μ from Sutherland's law (../drag.ts; reference sheet §4).
 
-import { PhysicsInputError, requireNonNegative, requirePositive } from '../errors';
+import { requireNonNegative, requirePositive } from '../errors';
 import { flyToPlane, type FlightResult } from '../flight/driver';
 import { muzzleSpeed, type GasInertia } from '../internal';
 import { sutherlandViscosity } from '../drag';
@@ -487,9 +487,4 @@ export function predictShot(
 		outsideCalibratedPressures: outside,
 		warnings
 	};
-}
-
-/** Re-thrown as null by callers that treat an unpredictable trial as infeasible. */
-export function isPhysicsInputError(e: unknown): e is PhysicsInputError {
-	return e instanceof PhysicsInputError;
 }
