@@ -25,9 +25,9 @@ export interface ParameterInfo {
 export const PARAMETER_INFO: Record<StoredParameterKey, ParameterInfo> = {
 	eta0: { label: 'Efficiency', symbol: 'η0', quantity: null, meaning: 'share of the ideal gas work that reaches the projectile' },
 	eta1: { label: 'Pressure slope of the efficiency', symbol: 'η1', quantity: null, meaning: 'change of η per relative change of fill pressure from p_ref' },
-	energyOffsetJ: { label: 'Energy term', symbol: 'E', quantity: null, meaning: 'energy offset in J: positive is friction-like loss, negative means the simple expansion under-states the work' },
-	valveAreaM2: { label: 'Valve area', symbol: 'C·A_v', quantity: null, meaning: 'effective flow area of the open valve, m²' },
-	openingTimeS: { label: 'Valve opening time', symbol: 'τ', quantity: null, meaning: 'time the valve takes to open fully, s' },
+	energyOffsetJ: { label: 'Energy term (J)', symbol: 'E', quantity: null, meaning: 'energy offset in J: positive is friction-like loss, negative means the simple expansion under-states the work' },
+	valveAreaM2: { label: 'Valve area (m²)', symbol: 'C·A_v', quantity: null, meaning: 'effective flow area of the open valve, m²' },
+	openingTimeS: { label: 'Valve opening time (s)', symbol: 'τ', quantity: null, meaning: 'time the valve takes to open fully, s' },
 	frictionN: { label: 'Friction', symbol: 'F', quantity: 'force', meaning: 'constant friction on the projectile in the bore' },
 	dragCoefficient: { label: 'Drag coefficient', symbol: 'C_D', quantity: null, meaning: 'quadratic drag of the projectile in flight' },
 	elevationBiasDeg: { label: 'Elevation bias', symbol: 'δθ', quantity: 'angle', meaning: 'difference between the set and the actual launch elevation' }

@@ -504,7 +504,8 @@ export async function calibrationDetail(rigId: number, projectileId: number, cal
 	};
 	const notDetermined = new Map((summary.notDetermined ?? []).map((n) => [n.parameter, n]));
 	const fittedKeys = summary.covarianceParameters ?? [];
-	const keys = STORED_KEYS.filter((k) => k === 'eta0' || row.fitted.includes(k) || fittedKeys.includes(k) || k === 'dragCoefficient');
+	const gasWork = (row.parameters.model?.family ?? 'gas-work') === 'gas-work';
+	const keys = STORED_KEYS.filter((k) => (k === 'eta0' && gasWork) || row.fitted.includes(k) || fittedKeys.includes(k) || k === 'dragCoefficient');
 	const parameters: ParameterView[] = keys.map((key) => {
 		const info = PARAMETER_INFO[key];
 		const nd = notDetermined.get(key);

@@ -52,7 +52,10 @@ interface RigTruth {
 	elevationBiasDeg: number;
 	/** Shot-to-shot scatter of the launch angle, degrees. */
 	elevationSdDeg: number;
-	/** Shot-to-shot variation of the muzzle speed itself (fit of the projectile in the bore), relative. */
+	/**
+	 * Shot-to-shot variation of the muzzle speed itself, relative: the projectiles' mass and fit in
+	 * the bore (moulded ice varies by a few per cent in mass).
+	 */
 	speedSdRel: number;
 	/** Impact read off the target face, and the rig's lateral scatter, m. */
 	impactSdM: number;
@@ -74,7 +77,7 @@ const RIGS: RigSpec[] = [
 		valveType: 'Pilot-operated diaphragm valve',
 		nominalEfficiency: 0.6,
 		notes: 'Ice-ball barrel with PTFE sleeve. Reservoir proof-tested hydrostatically to 1.5× rating.',
-		truth: { valveAreaM2: 0.3e-4, openingTimeS: 0.02, frictionN: 1.5, valveAreaWearPerWeek: 0, elevationBiasDeg: 0.05, elevationSdDeg: 0.04, speedSdRel: 0.004, impactSdM: 0.004 }
+		truth: { valveAreaM2: 0.3e-4, openingTimeS: 0.02, frictionN: 1.5, valveAreaWearPerWeek: 0, elevationBiasDeg: 0.05, elevationSdDeg: 0.03, speedSdRel: 0.008, impactSdM: 0.003 }
 	},
 	{
 		name: 'H2 · 45 mm hail launcher',
@@ -86,7 +89,7 @@ const RIGS: RigSpec[] = [
 		valveType: 'Quick-exhaust piston valve',
 		nominalEfficiency: 0.6,
 		notes: 'Second chronograph gate fitted 0.5 m in front of the specimen frame.',
-		truth: { valveAreaM2: 1.2e-4, openingTimeS: 0.02, frictionN: 4, valveAreaWearPerWeek: -0.012, elevationBiasDeg: -0.1, elevationSdDeg: 0.05, speedSdRel: 0.004, impactSdM: 0.006 }
+		truth: { valveAreaM2: 1.2e-4, openingTimeS: 0.02, frictionN: 4, valveAreaWearPerWeek: -0.0025, elevationBiasDeg: -0.1, elevationSdDeg: 0.04, speedSdRel: 0.007, impactSdM: 0.005 }
 	},
 	{
 		name: 'P3 · 60 mm product-impact cannon',
@@ -143,9 +146,9 @@ type SessionSpec = {
 
 /** In the order they are listed on the overview (the seed fires them in date order). */
 const SESSIONS: SessionSpec[] = [
-	{ title: 'H1 pressure sweep, ice 25 mm', rig: 0, projectile: 0, plan: null, daysAgo: 38, aim: { sweepBar: [1.0, 2.6], levels: 9, shots: 45 }, distanceM: 5, downrangeChronoM: 4.5, conditions: { temperatureC: 6, pressurePa: 101_900, relativeHumidity: 0.7, windXMps: 0, windZMps: 0 } },
+	{ title: 'H1 pressure sweep, ice 25 mm', rig: 0, projectile: 0, plan: null, daysAgo: 38, aim: { sweepBar: [1.0, 2.4], levels: 8, shots: 40 }, distanceM: 5, downrangeChronoM: 4.5, conditions: { temperatureC: 6, pressurePa: 101_900, relativeHumidity: 0.7, windXMps: 0, windZMps: 0 } },
 	{ title: 'H1 qualification run A', rig: 0, projectile: 0, plan: 0, daysAgo: 24, aim: { targetSpeedMps: 23, maxShots: 14 }, distanceM: 5, downrangeChronoM: 4.5, conditions: { temperatureC: 4, pressurePa: 100_800, relativeHumidity: 0.8, windXMps: -0.5, windZMps: 0.3 } },
-	{ title: 'H2 pressure sweep, nylon proxy', rig: 1, projectile: 2, plan: null, daysAgo: 35, aim: { sweepBar: [1.0, 3.4], levels: 9, shots: 45 }, distanceM: 6, downrangeChronoM: 5.5, conditions: { temperatureC: 8, pressurePa: 101_300, relativeHumidity: 0.6, windXMps: 0, windZMps: 0 } },
+	{ title: 'H2 pressure sweep, nylon proxy', rig: 1, projectile: 2, plan: null, daysAgo: 35, aim: { sweepBar: [1.0, 3.1], levels: 8, shots: 40 }, distanceM: 6, downrangeChronoM: 5.5, conditions: { temperatureC: 8, pressurePa: 101_300, relativeHumidity: 0.6, windXMps: 0, windZMps: 0 } },
 	{ title: 'H2 hail 45 mm, panel batch 7', rig: 1, projectile: 1, plan: 1, daysAgo: 17, aim: { targetSpeedMps: 30.7, maxShots: 14 }, distanceM: 6, downrangeChronoM: 5.5, conditions: { temperatureC: 3, pressurePa: 99_900, relativeHumidity: 0.85, windXMps: 0.4, windZMps: -0.6 } },
 	{ title: 'H2 hail 45 mm, panel batch 8', rig: 1, projectile: 1, plan: 1, daysAgo: 3, aim: { targetSpeedMps: 30.7, maxShots: 14 }, distanceM: 6, downrangeChronoM: 5.5, conditions: { temperatureC: 1, pressurePa: 102_200, relativeHumidity: 0.75, windXMps: 0, windZMps: 0.8 } },
 	{ title: 'P3 impactor sweep', rig: 2, projectile: 3, plan: null, daysAgo: 29, aim: { sweepBar: [1.2, 3.6], levels: 8, shots: 40 }, distanceM: 12, downrangeChronoM: 10, conditions: { temperatureC: 11, pressurePa: 101_000, relativeHumidity: 0.55, windXMps: 0, windZMps: 0 } },
@@ -158,7 +161,7 @@ const SESSIONS: SessionSpec[] = [
  * before the sessions they judge. `approveDaysAgo` absent: left a draft for review.
  */
 const CALIBRATIONS = [
-	{ rig: 0, projectile: 0, session: 0, fitDaysAgo: 36, approveDaysAgo: 34, notes: 'Pressure sweep 1.0–2.6 bar with both chronographs; model chosen by held-out error.' },
+	{ rig: 0, projectile: 0, session: 0, fitDaysAgo: 36, approveDaysAgo: 34, notes: 'Pressure sweep 1.0–2.4 bar with both chronographs; model chosen by held-out error.' },
 	{ rig: 1, projectile: 2, session: 2, fitDaysAgo: 33, approveDaysAgo: null, notes: 'Nylon proxy sweep; for review.' }
 ];
 
@@ -170,8 +173,6 @@ const CAMPAIGN_WEEKS = 6;
 const GAUGE_SD_PA = 800;
 /** The crew sets the fill to the gauge's resolution, Pa. */
 const GAUGE_STEP_PA = 1000;
-/** Elevation is set to 0.01°. */
-const ELEVATION_STEP_DEG = 0.01;
 const CHRONO_SD_MPS = 0.08;
 const MISS_RATE = 0.02;
 const VALVE_FLOW: LauncherModel = { family: 'valve-flow', drag: 'sphere' };
@@ -240,7 +241,7 @@ function setPoint(calibration: LauncherCalibration, spec: SessionSpec, rig: RigS
 	}
 	return {
 		fillGaugePa: Math.round(fillGaugePa / GAUGE_STEP_PA) * GAUGE_STEP_PA,
-		elevationDeg: Math.round(elevationDeg / ELEVATION_STEP_DEG) * ELEVATION_STEP_DEG
+		elevationDeg: round(elevationDeg, 2)
 	};
 }
 
@@ -341,7 +342,7 @@ function sightedElevation(truth: LauncherCalibration, spec: SessionSpec, rig: Ri
 	if (!m.ok) throw new Error(`demo seed: mid-sweep shot of "${spec.title}" fails: ${m.reason}`);
 	const elevation = solveCalibratedElevation(truth, shot, m.speedMps);
 	if (!elevation.ok) throw new Error(`demo seed: no elevation for "${spec.title}": ${elevation.reason}`);
-	return Math.round(elevation.elevationDeg / ELEVATION_STEP_DEG) * ELEVATION_STEP_DEG;
+	return round(elevation.elevationDeg, 2);
 }
 
 /** RFC 4122 version-4 layout from the seeded generator, so the demo is reproducible. */
