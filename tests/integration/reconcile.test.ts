@@ -466,7 +466,7 @@ describe('fitting a draft calibration', () => {
 		const drag = report.parameters.find((p) => p.name === 'dragCoefficient')!;
 		expect(drag.identifiable).toBe(false);
 		expect(drag.value).toBeNull();
-		expect(drag.reason).toMatch(/drag coefficient cannot be determined/i);
+		expect(drag.reason).toMatch(/drag coefficient C_D cannot be determined/i);
 		expect(calibration.standardErrors.dragCoefficient).toBeNull();
 		expect(calibration.parameters.dragCoefficient).toBe(BALL.nominalDragCoefficient);
 		expect(report.summary.notDetermined).toEqual([{ parameter: 'dragCoefficient', reason: drag.reason, heldAt: BALL.nominalDragCoefficient }]);
