@@ -4,7 +4,7 @@
 // from its nominal one, one rig slowly loses efficiency (seal wear), impacts scatter around the
 // aim point. Same seed → same data. Idempotent: does nothing when the lab is already there.
 import { count } from 'drizzle-orm';
-import bcrypt from 'bcryptjs';
+import { hashPassword } from '../accounts/passwords';
 import { airDensity, createRandom, flyToPlane, muzzleSpeed, type Random } from '../../physics';
 import { fillPressureForMuzzleSpeed } from '../../physics/internal';
 import { DEMO_PASSWORD, DEMO_USERS } from '../../../../scripts/lib/demo-users.mjs';
@@ -15,8 +15,6 @@ import { approveCalibration, fitCalibration, recomputePredictions } from '../rec
 const SEED = 20261202;
 const DAY_MS = 24 * 3600 * 1000;
 const BAR = 1e5;
-/** Demo passwords use a lower bcrypt cost than real accounts (12) to keep `npm test` quick. */
-const DEMO_BCRYPT_COST = 10;
 
 type RigSpec = typeof rigs.$inferInsert & {
 	/** The "true" rig the shots come from, unknown to the app until it calibrates. */
@@ -242,7 +240,8 @@ export async function seedDemo(db: Database, now = new Date()): Promise<boolean>
 	const [existing] = await db.select({ n: count() }).from(users);
 	if ((existing?.n ?? 0) > 0) return false;
 	const random = createRandom(SEED);
-	const passwordHash = await bcrypt.hash(DEMO_PASSWORD, DEMO_BCRYPT_COST);
+	// The app's own cost: a cheaper demo hash would answer faster for known addresses than unknown ones.
+	const passwordHash = await hashPassword(DEMO_PASSWORD);
 
 	const ids = await db.transaction(async (tx) => {
 		const userIds: Record<string, number> = {};
