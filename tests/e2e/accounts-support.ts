@@ -61,8 +61,8 @@ export async function withDatabase<T>(work: (db: mysql.Connection) => Promise<T>
  */
 export async function clearSignInFailures(emails: string[] = []) {
 	await withDatabase(async (db) => {
-		await db.query("DELETE FROM sign_in_failures WHERE bucket LIKE 'address:%127.0.0.1'");
-		for (const email of emails) await db.query('DELETE FROM sign_in_failures WHERE bucket = ?', [`account:${email.toLowerCase()}`]);
+		await db.query("DELETE FROM sign_in_limits WHERE `key` LIKE 'address:%127.0.0.1'");
+		for (const email of emails) await db.query('DELETE FROM sign_in_limits WHERE `key` = ?', [`account:${email.toLowerCase()}`]);
 	});
 }
 

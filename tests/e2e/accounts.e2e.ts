@@ -159,7 +159,11 @@ test('API tokens: created on the profile page, shown once, act with the user’s
 	await adminContext.close();
 	expect(await (await me()).json()).toMatchObject({ role: 'lead' });
 
+	// The role change ended the person's browser session: they sign in again, under the new role.
 	await page.reload();
+	await expect(page).toHaveURL(/\/signin\?next=%2Fprofile$/);
+	await signInWith(page, person.email, person.password);
+	await page.goto('/profile');
 	await expect(page.getByTestId('new-token')).toHaveCount(0);
 	const row = page.getByRole('row').filter({ hasText: 'chronograph uploader' });
 	await expect(row).toContainText(token.slice(0, 10));

@@ -43,6 +43,8 @@ test('an analyst uploads a file, fixes the mapping, sees the preview errors, imp
 	const runId = `${Date.now()}`;
 	const title = `E2E import ${runId}`;
 	const created = await page.request.post('/api/v1/sessions', {
+		// As the app's own pages send it: a cookie-authenticated write must name its origin.
+		headers: { origin: new URL(page.url()).origin },
 		data: {
 			title,
 			rigId: await idOf(page.request, 'rigs', 'H1 · 25 mm hail launcher'),

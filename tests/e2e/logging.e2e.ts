@@ -12,6 +12,8 @@ async function openSession(page: Page, title: string) {
 	const rig = rigs.rows.find((r: { name: string }) => r.name.startsWith('H1'));
 	const projectile = projectiles.rows.find((p: { name: string }) => p.name === 'Ice ball 25 mm');
 	const response = await page.request.post('/api/v1/sessions', {
+		// As the app's own pages send it: a cookie-authenticated write must name its origin.
+		headers: { origin: new URL(page.url()).origin },
 		data: {
 			title,
 			rigId: rig.id,
@@ -90,7 +92,7 @@ test('a range officer logs 25 shots through a network outage and a reload; each 
 	await lead.goto(`/sessions/${sessionId}`);
 	await lead.getByRole('button', { name: 'Close session' }).click();
 	await expect(lead.getByTestId('session-status')).toHaveText('■ Closed');
-	await expect(lead.getByText(/the report went to \d+ lead/)).toBeVisible();
+	await expect(lead.getByText(/The report is on its way to \d+ lead/)).toBeVisible();
 
 	const mailDir = process.env.MAIL_DIR;
 	if (!mailDir) throw new Error('MAIL_DIR is not set: run through npm test');
@@ -105,6 +107,7 @@ test('a range officer logs 25 shots through a network outage and a reload; each 
 
 	// A closed session refuses a range officer's shot.
 	const refused = await page.request.post(`/api/v1/sessions/${sessionId}/shots`, {
+		headers: { origin: new URL(page.url()).origin },
 		data: { clientUuid: crypto.randomUUID(), fillGaugePa: 83_000, muzzleSpeedMps: 25 }
 	});
 	expect(refused.status()).toBe(403);

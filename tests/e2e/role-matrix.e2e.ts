@@ -15,14 +15,16 @@ type StorageState = Awaited<ReturnType<import('@playwright/test').BrowserContext
 test.describe('role × route matrix', () => {
 	const signedIn = new Map<Role, StorageState>();
 
+	async function signInAs(browser: import('@playwright/test').Browser, role: Role) {
+		const context = await browser.newContext();
+		await signIn(await context.newPage(), role);
+		signedIn.set(role, await context.storageState());
+		await context.close();
+	}
+
 	test.beforeAll(async ({ browser }) => {
 		// One sign-in through the form per role; every request of that role reuses its cookies.
-		for (const role of ROLE_ORDER) {
-			const context = await browser.newContext();
-			await signIn(await context.newPage(), role);
-			signedIn.set(role, await context.storageState());
-			await context.close();
-		}
+		for (const role of ROLE_ORDER) await signInAs(browser, role);
 	});
 
 	test('every page, action and endpoint in src/routes has an entry in the access table', () => {
@@ -30,7 +32,7 @@ test.describe('role × route matrix', () => {
 	});
 
 	for (const routeId of routes) {
-		test(`${routeId}`, async ({ playwright, baseURL }) => {
+		test(`${routeId}`, async ({ playwright, baseURL, browser }) => {
 			const mismatches: string[] = [];
 			for (const role of IDENTITIES) {
 				// A fresh client per identity and route: a sign-out or a cookie refresh stays local.
@@ -49,6 +51,8 @@ test.describe('role × route matrix', () => {
 						);
 				}
 				await client.dispose();
+				// Signing out ends every session of the user (server-side), so sign that role in anew.
+				if (role && routeId === '/signout') await signInAs(browser, role);
 			}
 			expect(mismatches, mismatches.join('\n')).toEqual([]);
 		});

@@ -4,7 +4,7 @@ import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { scratchDatabase } from '../support/db';
-import { apiTokens, auditEvents, passwordTokens, signInFailures, users } from '../../src/lib/server/db/schema';
+import { apiTokens, auditEvents, passwordTokens, signInLimits, users } from '../../src/lib/server/db/schema';
 
 let scratch: Awaited<ReturnType<typeof scratchDatabase>>;
 // The modules under test use the app's one client, which reads DATABASE_URL on first use.
@@ -269,22 +269,23 @@ describe('one-time password links', () => {
 });
 
 describe('the sign-in rate limit (kept in MariaDB)', () => {
-	it('blocks an account after 5 failures, whatever the address', async () => {
+	it('blocks an account after 5 attempts, whatever the address, until a success clears it', async () => {
 		const email = `locked-${Date.now()}@accounts.test`;
 		for (let i = 0; i < accounts.rateLimit.MAX_FAILURES_PER_ACCOUNT; i++)
-			await accounts.rateLimit.recordSignInFailure(email, `198.51.100.${i}`);
+			expect(await accounts.rateLimit.reserveSignInAttempt(email, `198.51.100.${i}`)).toBe(0);
 		expect(await accounts.rateLimit.signInBlockedFor(email, '198.51.100.200')).toBe(15);
+		expect(await accounts.rateLimit.reserveSignInAttempt(email, '198.51.100.200')).toBe(15);
 		await accounts.rateLimit.clearAccountFailures(email);
 		expect(await accounts.rateLimit.signInBlockedFor(email, '198.51.100.200')).toBe(0);
 	});
 
-	it('blocks an address after 20 failures spread over many accounts', async () => {
+	it('blocks an address after 20 attempts spread over many accounts, in one row per key', async () => {
 		const address = '203.0.113.7';
 		for (let i = 0; i < accounts.rateLimit.MAX_FAILURES_PER_ADDRESS; i++)
-			await accounts.rateLimit.recordSignInFailure(`spray-${i}@accounts.test`, address);
+			await accounts.rateLimit.reserveSignInAttempt(`spray-${i}@accounts.test`, address);
 		expect(await accounts.rateLimit.signInBlockedFor('fresh@accounts.test', address)).toBe(15);
 		expect(await accounts.rateLimit.signInBlockedFor('fresh@accounts.test', '203.0.113.8')).toBe(0);
-		const rows = await scratch.db.select().from(signInFailures).where(eq(signInFailures.bucket, `address:${address}`));
-		expect(rows).toHaveLength(accounts.rateLimit.MAX_FAILURES_PER_ADDRESS);
+		const [row] = await scratch.db.select().from(signInLimits).where(eq(signInLimits.key, `address:${address}`));
+		expect(row.points).toBe(accounts.rateLimit.MAX_FAILURES_PER_ADDRESS);
 	});
 });

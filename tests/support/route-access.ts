@@ -87,7 +87,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/(app)/sessions/[id]': {
 		path: `/sessions/${MISSING_ID}`,
 		page: 'viewer',
-		actions: { closeSession: 'range_officer', reopenSession: 'lead', deleteSession: 'range_officer', restoreSession: 'range_officer' }
+		actions: { closeSession: 'range_officer', reopenSession: 'lead', deleteSession: 'range_officer', restoreSession: 'range_officer', resendReport: 'lead' }
 	},
 	'/(app)/sessions/[id]/log': { path: `/sessions/${MISSING_ID}/log`, page: 'range_officer' },
 	'/(app)/sessions/[id]/report': { path: `/sessions/${MISSING_ID}/report`, page: 'viewer' },
@@ -134,6 +134,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/sessions': { methods: { GET: 'viewer', POST: 'range_officer' } },
 	'/api/v1/sessions/[id]': { path: `/api/v1/sessions/${MISSING_ID}`, methods: { GET: 'viewer', PATCH: 'range_officer', DELETE: 'range_officer' } },
 	'/api/v1/sessions/[id]/close': { path: `/api/v1/sessions/${MISSING_ID}/close`, methods: { POST: 'range_officer' } },
+	'/api/v1/sessions/[id]/report-mail': { path: `/api/v1/sessions/${MISSING_ID}/report-mail`, methods: { POST: 'lead' } },
 	'/api/v1/sessions/[id]/shots': { path: `/api/v1/sessions/${MISSING_ID}/shots`, methods: { GET: 'viewer', POST: 'range_officer' } },
 	'/api/v1/shots/[id]': { path: `/api/v1/shots/${MISSING_ID}`, methods: { GET: 'viewer', PATCH: 'analyst', DELETE: 'analyst' } },
 	'/api/v1/predictions': { methods: { POST: 'viewer' } },

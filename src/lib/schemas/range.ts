@@ -21,6 +21,25 @@ const quantity = (field: string, min: number, max: number, unit: string, exclusi
 		.meta(unit ? { title: field, unit } : { title: field });
 };
 
+/** MariaDB's DATETIME range (MariaDB Knowledge Base, "DATETIME"); a time outside it cannot be stored. */
+export const EARLIEST_DATETIME = new Date('1000-01-01T00:00:00.000Z');
+export const LATEST_DATETIME = new Date('9999-12-31T23:59:59.999Z');
+
+/**
+ * A date and time (ISO 8601 text, milliseconds since 1970, or a Date from a form) that MariaDB can
+ * store. Only those kinds are coerced: coercing null or true would quietly make them 1970.
+ */
+export const dateTimeField = (field: string) =>
+	z
+		.union([z.string(), z.number(), z.date()], { error: `${field} must be a date and time.` })
+		.pipe(
+			z.coerce
+				.date<string | number | Date>({ error: `${field} must be a date and time.` })
+				.min(EARLIEST_DATETIME, `${field} must be in the years 1000 to 9999.`)
+				.max(LATEST_DATETIME, `${field} must be in the years 1000 to 9999.`)
+		)
+		.meta({ title: field });
+
 export const PROJECTILE_SHAPES = ['sphere', 'cylinder', 'finned', 'other'] as const;
 export const SPEED_REFERENCES = ['muzzle', 'target'] as const;
 
@@ -76,7 +95,7 @@ const sessionShape = z.object({
 	rigId: id('Rig'),
 	projectileId: id('Projectile'),
 	testPlanId: id('Test plan').nullish(),
-	startedAt: z.coerce.date({ error: 'Start time must be a date and time.' }),
+	startedAt: dateTimeField('Start time'),
 	targetDistanceM: quantity('Target distance', 0, 5000, 'm', true),
 	elevationDeg: quantity('Elevation', -45, 89, '°'),
 	azimuthDeg: quantity('Azimuth', -45, 45, '°').default(0),
@@ -105,7 +124,7 @@ export const shotInput = z.object({
 		.min(1, 'Sequence must be at least 1.')
 		.max(1_000_000, 'Sequence must be at most 1000000.')
 		.nullish(),
-	firedAt: z.coerce.date({ error: 'Fired-at must be a date and time.' }).nullish(),
+	firedAt: dateTimeField('Fired-at').nullish(),
 	fillGaugePa: quantity('Fill pressure', 0, 50e6, 'Pa'),
 	muzzleSpeedMps: quantity('Muzzle speed', 0, 2000, 'm/s', true).nullish(),
 	downrangeSpeedMps: quantity('Downrange speed', 0, 2000, 'm/s', true).nullish(),
@@ -120,11 +139,16 @@ export type ShotInput = z.infer<typeof shotInput>;
 
 /**
  * A partial change of a shot. The miss flag loses its default here: a change that does not
- * mention it must leave it as it is, not reset it to false.
+ * mention it must leave it as it is, not reset it to false. Sequence and fired-at may be left
+ * out but not emptied: a stored shot always has both (null there is a 400, not a NOT NULL error).
  */
 export const shotUpdate = shotInput
 	.omit({ clientUuid: true })
-	.extend({ miss: z.boolean({ error: 'Miss must be true or false.' }) })
+	.extend({
+		miss: z.boolean({ error: 'Miss must be true or false.' }),
+		sequence: shotInput.shape.sequence.unwrap().unwrap(),
+		firedAt: dateTimeField('Fired-at')
+	})
 	.partial();
 export type ShotUpdate = z.infer<typeof shotUpdate>;
 

@@ -8,15 +8,15 @@ import { z } from 'zod';
 import { airDensity } from '$lib/physics/air';
 import type { Role } from '$lib/roles';
 import { predictionInput } from '$lib/schemas/prediction';
-import { projectileInput, rangeSessionInput, rigInput, shotInput, shotUpdate, testPlanInput } from '$lib/schemas/range';
+import { EARLIEST_DATETIME, LATEST_DATETIME, projectileInput, rangeSessionInput, rigInput, shotInput, shotUpdate, testPlanInput } from '$lib/schemas/range';
 import { endpoint, fail, idParam, ok, parseBody, requestJson } from './api';
 import { requireRole, requireUser } from './guards';
-import { MAX_PAGE_SIZE, parseListParams, type ListParams, type Page } from './listing';
+import { boundedInt, MAX_PAGE, MAX_PAGE_SIZE, parseListParams, type ListParams, type Page } from './listing';
 import { plans } from './plans';
 import { predictSetup } from './predictions';
 import { projectiles } from './projectiles';
 import { rigs } from './rigs';
-import { notifyLeadsOfClose } from './session-view';
+import { queueSessionReport } from './session-view';
 import * as sessions from './sessions';
 import * as shots from './shots';
 
@@ -50,22 +50,15 @@ function queryParam(url: URL, name: string) {
 }
 
 function queryInt(url: URL, name: string, min: number, max: number): number | null {
-	const raw = queryParam(url, name);
-	if (raw === null) return null;
-	const n = Number(raw);
-	if (!Number.isInteger(n) || n < min || n > max) {
-		const message = `URL parameter "${name}" must be a whole number from ${min} to ${max}; got "${raw}".`;
-		fail(400, message, [{ path: name, message }]);
-	}
-	return n;
+	return boundedInt(url, name, null, min, max);
 }
 
 function queryDate(url: URL, name: string): Date | null {
 	const raw = queryParam(url, name);
 	if (raw === null) return null;
 	const date = new Date(raw);
-	if (Number.isNaN(date.getTime())) {
-		const message = `URL parameter "${name}" must be a date or date and time (ISO 8601); got "${raw}".`;
+	if (Number.isNaN(date.getTime()) || date < EARLIEST_DATETIME || date > LATEST_DATETIME) {
+		const message = `URL parameter "${name}" must be a date or date and time (ISO 8601) in the years 1000 to 9999; got "${raw.slice(0, 40)}".`;
 		fail(400, message, [{ path: name, message }]);
 	}
 	return date;
@@ -191,19 +184,21 @@ export const sessionApi = {
 		const user = await requireRole(event, 'range_officer');
 		return ok(await sessions.setDeleted(sessionId(event), true, user));
 	}),
-	/** Close and lock the session, then e-mail the leads the close-out report (as the page does). */
+	/** Close and lock the session; the close-out report to the leads goes through the outbox. */
 	close: endpoint(async (event) => {
 		const user = await requireRole(event, 'range_officer');
 		const id = sessionId(event);
 		const session = await sessions.close(id, user);
-		// The session stays closed whatever happens to the mail; a failure is reported, not hidden.
-		let leadsMailed: number | null = null;
-		try {
-			leadsMailed = await notifyLeadsOfClose(id);
-		} catch {
-			leadsMailed = null;
-		}
-		return ok({ ...session, leadsMailed, mailError: leadsMailed === null ? 'The close-out report could not be e-mailed.' : null });
+		const leadsMailed = await queueSessionReport(id, user, 'closed');
+		return ok({ ...session, leadsMailed, mailError: null });
+	}),
+	/** Leads ask for a closed session's report again (say, after the mail server was down). */
+	resendReport: endpoint(async (event) => {
+		const user = await requireRole(event, 'lead');
+		const id = sessionId(event);
+		const { session } = await liveSession(id);
+		if (session.status !== 'closed') fail(409, 'The report goes out once the session is closed.', [{ path: 'id', message: 'The session is open.' }]);
+		return ok({ sessionId: id, leadsQueued: await queueSessionReport(id, user, 'resent') }, 202);
 	})
 };
 
@@ -219,7 +214,7 @@ export const shotApi = {
 		const id = sessionId(event);
 		const url = event.url;
 		const params = {
-			page: queryInt(url, 'page', 1, 1_000_000) ?? 1,
+			page: queryInt(url, 'page', 1, MAX_PAGE) ?? 1,
 			pageSize: queryInt(url, 'pageSize', 1, MAX_PAGE_SIZE) ?? 100,
 			deleted: queryFlag(url, 'deleted'),
 			from: queryInt(url, 'from', 1, 1_000_000),

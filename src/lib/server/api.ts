@@ -26,18 +26,36 @@ export function ok(data: unknown, status = 200) {
 	return json(data, { status, headers: NO_STORE });
 }
 
-/** The request's JSON body, or undefined when it is missing or not JSON. */
-export async function jsonBody(request: Request): Promise<unknown> {
-	try {
-		return await request.json();
-	} catch {
-		return undefined;
-	}
-}
-
 /** Throw an API error from anywhere below a handler wrapped in endpoint(). */
 export function fail(status: number, message: string, issues: ApiIssue[] = []): never {
 	error(status, { message, issues });
+}
+
+/**
+ * Largest JSON body the API reads. Its bodies are one record (a shot, a session, a setup
+ * question): a few kilobytes. Files go to the import endpoint as multipart, not through here.
+ */
+export const MAX_JSON_BODY_BYTES = 1024 * 1024;
+
+function tooLarge(): never {
+	const message = `The body is larger than ${MAX_JSON_BODY_BYTES / 1024 / 1024} MB; the API takes JSON records, not files.`;
+	fail(413, message, [{ path: '', message }]);
+}
+
+/** The body's bytes, or 413 past the limit (told by Content-Length, or by the bytes themselves). */
+async function boundedBody(request: Request): Promise<Uint8Array> {
+	const declared = Number(request.headers.get('content-length') ?? 0);
+	if (declared > MAX_JSON_BODY_BYTES) tooLarge();
+	let bytes: Uint8Array;
+	try {
+		bytes = new Uint8Array(await request.arrayBuffer());
+	} catch (err) {
+		// adapter-node's own BODY_SIZE_LIMIT stops the stream with a 413 of its own.
+		if ((err as { status?: number }).status === 413) tooLarge();
+		throw err;
+	}
+	if (bytes.byteLength > MAX_JSON_BODY_BYTES) tooLarge();
+	return bytes;
 }
 
 /**
@@ -51,9 +69,12 @@ export async function requestJson(request: Request): Promise<unknown> {
 		fail(415, 'Send the body as JSON with the header Content-Type: application/json.', [
 			{ path: '', message: `Content-Type is "${type || 'missing'}", not application/json.` }
 		]);
-	const body = await jsonBody(request);
-	if (body === undefined) fail(400, 'The body is not valid JSON.', [{ path: '', message: 'The body is not valid JSON.' }]);
-	return body;
+	const bytes = await boundedBody(request);
+	try {
+		return JSON.parse(new TextDecoder().decode(bytes));
+	} catch {
+		fail(400, 'The body is not valid JSON.', [{ path: '', message: 'The body is not valid JSON.' }]);
+	}
 }
 
 /** The body parsed by the schema; 400 naming each faulty field (or the body when it is not JSON). */

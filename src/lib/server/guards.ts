@@ -1,5 +1,5 @@
 // Every load, action and endpoint calls one of these. They re-read the user from MariaDB on each
-// request: a disabled account or a changed role takes effect on the very next request.
+// request: a disabled account, a changed role or ended sessions take effect on the very next request.
 import { error, redirect, type RequestEvent } from '@sveltejs/kit';
 import { hasRole, ROLE_LABELS, type Role } from '$lib/roles';
 import { findActiveUser } from './accounts/users';
@@ -14,7 +14,7 @@ function isApi(event: Event) {
 export async function optionalUser(event: Event): Promise<AppUser | null> {
 	if (event.locals.user) return event.locals.user;
 	if (event.locals.claimedUserId === null) return null;
-	event.locals.user = await findActiveUser(event.locals.claimedUserId);
+	event.locals.user = await findActiveUser(event.locals.claimedUserId, event.locals.claimedSessionVersion ?? -1);
 	return event.locals.user;
 }
 

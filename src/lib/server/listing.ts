@@ -5,6 +5,8 @@ import { asc, desc, type AnyColumn, type SQL } from 'drizzle-orm';
 
 export const DEFAULT_PAGE_SIZE = 25;
 export const MAX_PAGE_SIZE = 500;
+/** Pages beyond this hold nothing anyone will page to; the bound keeps OFFSET inside BIGINT. */
+export const MAX_PAGE = 1_000_000;
 
 export type ListParams<S extends string> = {
 	q: string | null;
@@ -16,13 +18,25 @@ export type ListParams<S extends string> = {
 	deleted: boolean;
 };
 
-function positiveInt(url: URL, name: string, fallback: number, max: number) {
-	const raw = url.searchParams.get(name);
+/** A whole number from min to max written in digits ("1e3" and "0x10" are not page numbers). */
+export function boundedInt<F extends number | null>(url: URL, name: string, fallback: F, min: number, max: number): number | F {
+	const raw = url.searchParams.get(name)?.trim() ?? null;
 	if (raw === null || raw === '') return fallback;
 	const n = Number(raw);
-	if (!Number.isInteger(n) || n < 1 || n > max)
-		error(400, { message: `URL parameter "${name}" must be a whole number from 1 to ${max}; got "${raw}".` });
+	if (!/^[+-]?\d{1,16}$/.test(raw) || !Number.isSafeInteger(n) || n < min || n > max) {
+		const message = `URL parameter "${name}" must be a whole number from ${min} to ${max}; got "${raw.slice(0, 40)}".`;
+		error(400, { message, issues: [{ path: name, message }] });
+	}
 	return n;
+}
+
+function positiveInt(url: URL, name: string, fallback: number, max: number): number {
+	return boundedInt(url, name, fallback, 1, max);
+}
+
+/** The page number of a paged table (?page=), 1 when absent. */
+export function pageNumber(url: URL) {
+	return positiveInt(url, 'page', 1, MAX_PAGE);
 }
 
 export function parseListParams<S extends string>(url: URL, sortable: readonly S[], defaultSort: S, defaultDir: 'asc' | 'desc' = 'asc'): ListParams<S> {
@@ -40,7 +54,7 @@ export function parseListParams<S extends string>(url: URL, sortable: readonly S
 		q,
 		sort: sort as S,
 		dir,
-		page: positiveInt(url, 'page', 1, 1_000_000),
+		page: pageNumber(url),
 		pageSize: positiveInt(url, 'pageSize', DEFAULT_PAGE_SIZE, MAX_PAGE_SIZE),
 		deleted: deletedRaw === '1' || deletedRaw === 'true'
 	};

@@ -8,13 +8,25 @@ export type OutgoingMail = { to: string; subject: string; text: string; html?: s
 /** Sender shown on every message; MAIL_FROM overrides it for a real relay. */
 const DEFAULT_FROM = 'Shotwright <shotwright@localhost>';
 
+/**
+ * A hung mail server must not hold a request or the outbox worker for long: give up after a few
+ * seconds (nodemailer waits up to 2 min to connect and 10 min on a silent socket by default).
+ * The outbox retries later.
+ */
+export const SMTP_TIMEOUT_MS = 5000;
+
 let transport: Transporter | undefined;
 
 function transporter() {
 	if (!transport) {
 		const url = process.env.SMTP_URL;
 		if (!url) throw new Error('SMTP_URL is not set: start the app with `npm start`, or point it at an SMTP server.');
-		transport = nodemailer.createTransport(url);
+		transport = nodemailer.createTransport({
+			url,
+			connectionTimeout: SMTP_TIMEOUT_MS,
+			greetingTimeout: SMTP_TIMEOUT_MS,
+			socketTimeout: SMTP_TIMEOUT_MS
+		});
 	}
 	return transport;
 }

@@ -95,9 +95,10 @@ const sessionDetail = rangeSession.extend({
 	projectile,
 	plan: testPlan.nullable()
 });
+const reportMailQueued = z.object({ sessionId: z.int(), leadsQueued: z.int().meta({ description: 'Active leads the report is queued for.' }) });
 const closedSession = rangeSession.extend({
-	leadsMailed: z.int().nullable().meta({ description: 'Leads sent the close-out report; null when the mail failed.' }),
-	mailError: z.string().nullable()
+	leadsMailed: z.int().nullable().meta({ description: 'Leads the close-out report is queued for (the mail outbox sends it and retries).' }),
+	mailError: z.string().nullable().meta({ description: 'Always null: the report is queued, so closing never fails on mail.' })
 });
 const shotPrediction = z
 	.object({
@@ -212,6 +213,7 @@ const COMPONENTS = {
 	RangeSession: { schema: rangeSession, io: 'output' },
 	RangeSessionDetail: { schema: sessionDetail, io: 'output' },
 	ClosedRangeSession: { schema: closedSession, io: 'output' },
+	ReportMailQueued: { schema: reportMailQueued, io: 'output' },
 	RangeSessionPage: { schema: page(sessionRow), io: 'output' },
 	ShotInput: { schema: shotInput, io: 'input' },
 	ShotUpdate: { schema: shotUpdate, io: 'input' },
@@ -559,10 +561,22 @@ export const OPERATIONS: Operation[] = [
 		operationId: 'closeSession',
 		tag: 'Range sessions',
 		summary: 'Close a range session',
-		description: 'Locks the session (later edits need a lead) and e-mails the leads the close-out report. No body.',
+		description: 'Locks the session (later edits need a lead) and queues the close-out report for the leads (sent by the mail outbox, retried when the mail server is down). No body.',
 		access: 'range_officer',
 		parameters: [idParameter('range session')],
-		responses: [{ status: 200, description: 'The closed session and whether the report went out.', schema: 'ClosedRangeSession' }],
+		responses: [{ status: 200, description: 'The closed session and how many leads the report is queued for.', schema: 'ClosedRangeSession' }],
+		errors: [403, 404, 409]
+	},
+	{
+		method: 'post',
+		path: '/api/v1/sessions/{id}/report-mail',
+		operationId: 'resendSessionReport',
+		tag: 'Range sessions',
+		summary: 'Send a closed session’s report to the leads again',
+		description: 'Queues the close-out report once more for every active lead (say, after the mail server was down). No body. Audited.',
+		access: 'lead',
+		parameters: [idParameter('range session')],
+		responses: [{ status: 202, description: 'How many leads the report is queued for.', schema: 'ReportMailQueued' }],
 		errors: [403, 404, 409]
 	},
 	{

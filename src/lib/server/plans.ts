@@ -10,6 +10,8 @@ export const plans = registry<typeof table, TestPlan, TestPlanInput, 'name' | 'r
 	entityType: 'test_plan',
 	sortable: { name: table.name, requiredSpeedMps: table.requiredSpeedMps, targetDistanceM: table.targetDistanceM, updatedAt: table.updatedAt },
 	defaultSort: 'name',
+	// Leads own test plans (product brief): the lead who writes one is its owner.
+	creatorColumn: 'ownerId',
 	// Pass/fail of every shot judged against the plan.
 	afterUpdate: async (tx, id) => {
 		const judged = await tx.select({ id: rangeSessions.id }).from(rangeSessions).where(eq(rangeSessions.testPlanId, id));

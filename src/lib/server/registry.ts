@@ -20,6 +20,8 @@ export type RegistryOptions<S extends string> = {
 	defaultSort: S;
 	/** Runs inside an update's transaction, e.g. to recompute the predictions that depend on the row. */
 	afterUpdate?: (tx: Transaction, id: number) => Promise<unknown>;
+	/** The column that names who created the row (a test plan's owner), set from the creating user. */
+	creatorColumn?: string;
 };
 
 /** A duplicate name is the one constraint users can hit by hand: say so in words. */
@@ -34,7 +36,7 @@ export class DuplicateNameError extends Error {
 	}
 }
 
-export function registry<T extends RegistryTable, Row extends { id: number }, Input extends Record<string, unknown>, S extends string>(
+export function registry<T extends RegistryTable, Row extends { id: number; deletedAt: Date | null }, Input extends Record<string, unknown>, S extends string>(
 	table: T,
 	options: RegistryOptions<S>
 ) {
@@ -89,7 +91,8 @@ export function registry<T extends RegistryTable, Row extends { id: number }, In
 		async create(input: Input, userId: number): Promise<Row> {
 			try {
 				return await db.transaction(async (tx) => {
-					const [created] = await tx.insert(t).values(input as never).$returningId();
+					const values = options.creatorColumn ? { ...input, [options.creatorColumn]: userId } : input;
+					const [created] = await tx.insert(t).values(values as never).$returningId();
 					const id = (created as { id: number }).id;
 					const row = (await find(tx, id))!;
 					await recordAudit(tx, { userId, action: 'create', entityType, entityId: id, after: row });
@@ -108,7 +111,8 @@ export function registry<T extends RegistryTable, Row extends { id: number }, In
 					// before this row was locked, and a shot being logged (which share-locks the row
 					// while it predicts) either finishes first or reads this change.
 					const before = await find(tx, id, { lock: true });
-					if (!before) error(404, { message: `No ${entityType} with id ${id}.` });
+					// A deleted row is gone for writers until it is restored.
+					if (!before || before.deletedAt) error(404, { message: `No ${entityType} with id ${id}.` });
 					await tx.update(t).set(input as never).where(eq(t.id, id));
 					await options.afterUpdate?.(tx, id);
 					const after = (await find(tx, id))!;
@@ -133,8 +137,11 @@ export function registry<T extends RegistryTable, Row extends { id: number }, In
 
 	async function setDeleted(id: number, at: Date | null, userId: number, action: string): Promise<Row> {
 		return db.transaction(async (tx) => {
-			const before = await find(tx, id);
-			if (!before) error(404, { message: `No ${entityType} with id ${id}.` });
+			const before = await find(tx, id, { lock: true });
+			const wasDeleted = Boolean(before && before.deletedAt);
+			// Deleting a deleted row finds nothing to delete: 404 and no audit event.
+			if (!before || (at !== null && wasDeleted)) error(404, { message: `No ${entityType} with id ${id}.` });
+			if (at === null && !wasDeleted) return before;
 			await tx.update(t).set({ deletedAt: at } as never).where(eq(t.id, id));
 			const after = (await find(tx, id))!;
 			await recordAudit(tx, { userId, action, entityType, entityId: id, before, after });

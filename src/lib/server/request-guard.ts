@@ -3,6 +3,7 @@
 import type { Handle } from '@sveltejs/kit';
 import { error } from '@sveltejs/kit';
 import { resolveBearerToken } from './accounts/tokens';
+import { servedOverHttps, sessionExpired } from './auth';
 import { requireRole, requireUser } from './guards';
 
 /** API routes anyone may call: health checks, the API description, and issuing a token. */
@@ -29,13 +30,68 @@ export function routeZone(routeId: string | null, pathname: string): RouteZone {
 	return 'public';
 }
 
+const SAFE_METHODS = new Set(['GET', 'HEAD', 'OPTIONS']);
+
+function bearerToken(request: Request) {
+	const authorization = request.headers.get('authorization');
+	return authorization?.startsWith('Bearer ') ? authorization.slice(7).trim() : null;
+}
+
+/** Auth.js's session cookie (named with __Secure- over https, split into .0, .1 … when large). */
+function hasSessionCookie(cookieHeader: string | null) {
+	return cookieHeader !== null && /(^|;\s*)(__Secure-)?authjs\.session-token(\.\d+)?=/.test(cookieHeader);
+}
+
+/**
+ * True when the browser says the request comes from a page of this origin: the Origin header,
+ * or, where a browser leaves that out, Fetch Metadata's Sec-Fetch-Site.
+ */
+export function sameOrigin(request: Request, origin: string) {
+	const claimed = request.headers.get('origin');
+	if (claimed !== null) return claimed === origin;
+	return request.headers.get('sec-fetch-site') === 'same-origin';
+}
+
+/**
+ * Before anything else. (1) Auth.js's own HTTP endpoints for signing in and out are closed: the
+ * app signs in and out through its own pages, which call Auth.js in-process after the rate limit
+ * (accounts/sign-in.ts); its credentials callback would otherwise take unlimited guesses.
+ * (2) A write carried by the session cookie must come from the app's own pages, whatever its
+ * body: SvelteKit checks the origin of form posts only, and a bodiless or text/plain POST needs
+ * no preflight. Bearer-token requests carry no ambient credential and are left alone.
+ */
+export const guardRequestOrigin: Handle = async ({ event, resolve }) => {
+	const { request, url } = event;
+	if (url.pathname.startsWith('/auth/') && !SAFE_METHODS.has(request.method))
+		error(404, { message: 'Not found: sign in and out on the app’s own pages.', issues: [] });
+	if (!SAFE_METHODS.has(request.method) && bearerToken(request) === null && hasSessionCookie(request.headers.get('cookie')) && !sameOrigin(request, url.origin)) {
+		const message = 'This request did not come from a Shotwright page (the Origin header is missing or names another site).';
+		error(403, { message, issues: [{ path: 'Origin', message }] });
+	}
+	return resolve(event);
+};
+
+/**
+ * Cookies the same on sign-in and on refresh: Auth.js's session refresh hands SvelteKit cookie
+ * options without a Secure attribute when it is off, and SvelteKit would then add Secure by
+ * default (anywhere but localhost), so a client on plain http would lose the refreshed session.
+ * Every cookie set for this request says Secure exactly when the app is served over https.
+ */
+export const secureCookiesByProtocol: Handle = async ({ event, resolve }) => {
+	const secure = servedOverHttps(event.url);
+	const set = event.cookies.set.bind(event.cookies);
+	event.cookies.set = (name, value, options) => set(name, value, { ...options, secure });
+	return resolve(event);
+};
+
 export const identify: Handle = async ({ event, resolve }) => {
 	event.locals.claimedUserId = null;
+	event.locals.claimedSessionVersion = null;
 	event.locals.apiTokenId = null;
 	event.locals.user = null;
-	const authorization = event.request.headers.get('authorization');
-	if (authorization?.startsWith('Bearer ')) {
-		const token = await resolveBearerToken(authorization.slice(7).trim());
+	const bearer = bearerToken(event.request);
+	if (bearer !== null) {
+		const token = await resolveBearerToken(bearer);
 		if (!token) error(401, { message: 'The API token is unknown or revoked.', issues: [] });
 		event.locals.claimedUserId = token.userId;
 		event.locals.apiTokenId = token.id;
@@ -44,7 +100,11 @@ export const identify: Handle = async ({ event, resolve }) => {
 	} else {
 		const session = await event.locals.auth();
 		const id = Number(session?.user?.id);
-		if (Number.isInteger(id) && id > 0) event.locals.claimedUserId = id;
+		// A session without a version or sign-in time is from before they existed: signed out.
+		if (Number.isInteger(id) && id > 0 && typeof session?.sessionVersion === 'number' && !sessionExpired(session.signedInAt)) {
+			event.locals.claimedUserId = id;
+			event.locals.claimedSessionVersion = session.sessionVersion;
+		}
 	}
 	return resolve(event);
 };

@@ -7,7 +7,9 @@ import { users } from './db/schema';
 import * as sessions from './sessions';
 import * as shots from './shots';
 import { ReconcileError, sessionStatistics } from './reconcile';
-import { appLink, sendMail } from './mail';
+import { appLink } from './mail';
+import { enqueueMail } from './mail/outbox';
+import { recordAudit } from './audit';
 
 export async function sessionView(id: number) {
 	const [view, allShots, statistics] = await Promise.all([
@@ -44,11 +46,24 @@ export function closeOutText(view: SessionView, link: string) {
 	return lines.filter((l, i, all) => l !== '' || all[i - 1] !== '').join('\n');
 }
 
-/** E-mail every active lead the close-out report of a session. Returns how many were sent. */
-export async function notifyLeadsOfClose(id: number) {
+export const SESSION_REPORT_MAIL = 'session_report';
+
+/**
+ * Queue the close-out report for every active lead (the outbox sends it, mail/outbox.ts), with
+ * an audit event in the same transaction. On close, and when a lead asks for it again (resend).
+ * Returns how many leads it was queued for.
+ */
+export async function queueSessionReport(id: number, actor: AppUser, reason: 'closed' | 'resent') {
 	const view = await sessionView(id);
-	const leads = await db.select({ email: users.email }).from(users).where(and(eq(users.role, 'lead'), isNull(users.disabledAt)));
 	const text = closeOutText(view, appLink(`/sessions/${id}/report`));
-	for (const lead of leads) await sendMail({ to: lead.email, subject: `Session closed: ${view.session.title}`, text });
-	return leads.length;
+	return db.transaction(async (tx) => {
+		const leads = await tx.select({ email: users.email }).from(users).where(and(eq(users.role, 'lead'), isNull(users.disabledAt)));
+		const subject = `Session closed: ${view.session.title}`;
+		await enqueueMail(
+			tx,
+			leads.map((lead) => ({ kind: SESSION_REPORT_MAIL, entityId: id, to: lead.email, subject, text }))
+		);
+		await recordAudit(tx, { userId: actor.id, action: reason === 'closed' ? 'report_mail_queued' : 'report_mail_resent', entityType: 'range_session', entityId: id, after: { leads: leads.length } });
+		return leads.length;
+	});
 }

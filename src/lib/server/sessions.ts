@@ -170,8 +170,10 @@ export async function reopen(id: number, user: AppUser) {
 export async function setDeleted(id: number, deleted: boolean, user: AppUser) {
 	return db.transaction(async (tx) => {
 		const [before] = await tx.select().from(rangeSessions).where(eq(rangeSessions.id, id)).for('update');
-		if (!before) throw new SessionRuleError('sessionId', `No range session with id ${id}.`, 404);
+		// Deleting a deleted session finds nothing to delete (404, and no audit event).
+		if (!before || (deleted && before.deletedAt)) throw new SessionRuleError('sessionId', `No range session with id ${id}.`, 404);
 		assertWritable(before, user);
+		if (!deleted && !before.deletedAt) return before;
 		await tx.update(rangeSessions).set({ deletedAt: deleted ? new Date() : null }).where(eq(rangeSessions.id, id));
 		const [after] = await tx.select().from(rangeSessions).where(eq(rangeSessions.id, id));
 		await recordAudit(tx, { userId: user.id, action: deleted ? 'delete' : 'restore', entityType: 'range_session', entityId: id, before, after });

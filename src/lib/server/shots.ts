@@ -294,9 +294,11 @@ export async function update(shotId: number, patch: ShotUpdate, user: AppUser) {
 export async function setDeleted(shotId: number, deleted: boolean, user: AppUser) {
 	return db.transaction(async (tx) => {
 		const [current] = await tx.select().from(shots).where(eq(shots.id, shotId));
-		if (!current) throw new SessionRuleError('shotId', `No shot with id ${shotId}.`, 404);
+		// Deleting a deleted shot finds nothing to delete (404, and no audit event), as a list would.
+		if (!current || (deleted && current.deletedAt)) throw new SessionRuleError('shotId', `No shot with id ${shotId}.`, 404);
 		const session = await lockForWrite(tx, current.sessionId);
 		assertWritable(session, user);
+		if (!deleted && !current.deletedAt) return current;
 		await tx.update(shots).set({ deletedAt: deleted ? new Date() : null }).where(eq(shots.id, shotId));
 		const [after] = await tx.select().from(shots).where(eq(shots.id, shotId));
 		await recordAudit(tx, { userId: user.id, action: deleted ? 'delete' : 'restore', entityType: 'shot', entityId: shotId, before: current, after });
@@ -356,10 +358,12 @@ export async function recentForSession(sessionId: number, limit: number): Promis
 }
 
 /** One shot with its prediction and residuals (deleted shots too, with deletedAt set), or null. */
+/** A shot with its prediction; null when there is none, or its session is deleted (as its list is gone). */
 export async function getWithPrediction(shotId: number): Promise<ShotWithPrediction | null> {
 	const [row] = await db
 		.select({ shot: shots, prediction: shotPredictions })
 		.from(shots)
+		.innerJoin(rangeSessions, and(eq(rangeSessions.id, shots.sessionId), isNull(rangeSessions.deletedAt)))
 		.leftJoin(shotPredictions, eq(shotPredictions.shotId, shots.id))
 		.where(eq(shots.id, shotId))
 		.limit(1);

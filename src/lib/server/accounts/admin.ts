@@ -12,6 +12,7 @@ import { accountStatus, isActiveAdmin, normaliseEmail } from './users';
 import { issuePasswordToken } from './password-tokens';
 import { invitationMail } from './messages';
 import { listApiTokens } from './tokens';
+import { endSessions } from './sessions';
 
 /** A rule of user management was about to be broken; the message is meant for the admin. */
 export class AccountRuleError extends Error {}
@@ -72,6 +73,8 @@ export async function changeRole(actor: AppUser, userId: number, role: Role) {
 		if (target.role === role) return { changed: false };
 		if (role !== 'admin') refuseLastAdmin(admins, target, `make them ${ROLE_LABELS[role]}`);
 		await tx.update(users).set({ role }).where(eq(users.id, userId));
+		// The person signs in again under the new role rather than keep a session granted under the old.
+		await endSessions(tx, userId);
 		await recordAudit(tx, { userId: actor.id, action: 'role_changed', entityType: 'user', entityId: userId, before: { role: target.role }, after: { role } });
 		return { changed: true };
 	});
@@ -88,6 +91,7 @@ export async function setDisabled(actor: AppUser, userId: number, disabled: bool
 			refuseLastAdmin(admins, target, 'disable their account');
 		}
 		await tx.update(users).set({ disabledAt: disabled ? now : null }).where(eq(users.id, userId));
+		if (disabled) await endSessions(tx, userId);
 		await recordAudit(tx, {
 			userId: actor.id,
 			action: disabled ? 'user_disabled' : 'user_enabled',

@@ -11,6 +11,7 @@ import { hashToken } from './tokens';
 import { hashPassword } from './passwords';
 import { clearAccountFailures } from './rate-limit';
 import { findUserByEmail } from './users';
+import { endSessions } from './sessions';
 import { invitationMail, resetMail } from './messages';
 
 export type PasswordTokenPurpose = 'invite' | 'reset';
@@ -63,6 +64,8 @@ export async function redeemPasswordToken(token: string, password: string, now =
 		const [user] = await tx.select().from(users).where(eq(users.id, row.userId)).for('update');
 		if (!user || user.disabledAt) return null;
 		await tx.update(users).set({ passwordHash }).where(eq(users.id, user.id));
+		// Whoever knew the old password is signed out everywhere.
+		await endSessions(tx, user.id);
 		await tx
 			.update(passwordTokens)
 			.set({ usedAt: now })

@@ -4,8 +4,9 @@ import { db } from '../db';
 import { users } from '../db/schema';
 import { recordAudit } from '../audit';
 import type { UnitPreferences } from '$lib/physics/units';
-import { hashPassword, passwordMatches } from './passwords';
-import { clearAccountFailures, recordSignInFailure, signInBlockedFor } from './rate-limit';
+import { hashPassword } from './passwords';
+import { checkPassword } from './sign-in';
+import { endSessions } from './sessions';
 
 export type PasswordChange =
 	| { ok: true }
@@ -13,24 +14,21 @@ export type PasswordChange =
 	| { ok: false; blockedMinutes: number; message: string };
 
 /**
- * Change the password after checking the current one. A wrong current password counts towards the
- * sign-in rate limit: an unattended signed-in tablet must not become a way to guess passwords.
+ * Change the password after checking the current one, under the sign-in rate limit and audit: an
+ * unattended signed-in tablet must not become a way to guess passwords. Every session of the
+ * user ends (the caller signs the current one in again with the new password).
  */
 export async function changePassword(user: AppUser, current: string, next: string, address: string): Promise<PasswordChange> {
-	const waitMinutes = await signInBlockedFor(user.email, address);
-	if (waitMinutes > 0)
-		return { ok: false, blockedMinutes: waitMinutes, message: `Too many wrong passwords. Wait ${waitMinutes} minutes and try again.` };
-	const [row] = await db.select({ passwordHash: users.passwordHash }).from(users).where(eq(users.id, user.id)).limit(1);
-	if (!row?.passwordHash || !(await passwordMatches(current, row.passwordHash))) {
-		await recordSignInFailure(user.email, address);
-		return { ok: false, field: 'current', message: 'The current password is not right.' };
-	}
+	const check = await checkPassword(user.email, current, address);
+	if (!check.ok && check.blockedMinutes > 0)
+		return { ok: false, blockedMinutes: check.blockedMinutes, message: `Too many wrong passwords. Wait ${check.blockedMinutes} minutes and try again.` };
+	if (!check.ok || check.userId !== user.id) return { ok: false, field: 'current', message: 'The current password is not right.' };
 	const passwordHash = await hashPassword(next);
 	await db.transaction(async (tx) => {
 		await tx.update(users).set({ passwordHash }).where(eq(users.id, user.id));
+		await endSessions(tx, user.id);
 		await recordAudit(tx, { userId: user.id, action: 'password_changed', entityType: 'user', entityId: user.id });
 	});
-	await clearAccountFailures(user.email);
 	return { ok: true };
 }
 

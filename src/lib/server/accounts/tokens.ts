@@ -7,10 +7,8 @@ import { db, pool } from '../db';
 import * as raw from '../db/raw';
 import { apiTokens, users } from '../db/schema';
 import { recordAudit } from '../audit';
-import { verifyCredentials } from './passwords';
 import { activeUserOf } from './users';
-import { clearAccountFailures, signInBlockedFor } from './rate-limit';
-import { recordFailedSignIn } from './sign-in';
+import { checkPassword } from './sign-in';
 
 export const TOKEN_PREFIX = 'swt_';
 /** Characters of a token kept in clear so its owner can tell tokens apart ("swt_" + 6). */
@@ -118,15 +116,10 @@ export async function issueTokenForCredentials(
 	input: { email: string; password: string; name: string },
 	address: string
 ): Promise<TokenForCredentials> {
-	const waitMinutes = await signInBlockedFor(input.email, address);
-	if (waitMinutes > 0)
-		return { ok: false, status: 429, message: `Too many failed sign-ins. Wait ${waitMinutes} minutes and try again.` };
-	const userId = await verifyCredentials({ email: input.email, password: input.password });
-	if (userId === null) {
-		await recordFailedSignIn(input.email, address);
-		return { ok: false, status: 401, message: 'That e-mail and password do not match an active account.' };
-	}
-	await clearAccountFailures(input.email);
-	const created = await createApiToken(userId, input.name);
+	const check = await checkPassword(input.email, input.password, address);
+	if (!check.ok && check.blockedMinutes > 0)
+		return { ok: false, status: 429, message: `Too many failed sign-ins. Wait ${check.blockedMinutes} minutes and try again.` };
+	if (!check.ok) return { ok: false, status: 401, message: 'That e-mail and password do not match an active account.' };
+	const created = await createApiToken(check.userId, input.name);
 	return { ok: true, id: created.id, name: created.name, token: created.token };
 }

@@ -3,9 +3,13 @@ import { db } from '../db';
 import { users } from '../db/schema';
 import { isRole } from '$lib/roles';
 
-/** The user as stored now, or null when missing or disabled (a disabled account acts as signed out). */
-export async function findActiveUser(id: number): Promise<AppUser | null> {
+/**
+ * The user as stored now, or null when missing or disabled (a disabled account acts as signed
+ * out), or when the session's version is not the user's current one (its sessions were ended).
+ */
+export async function findActiveUser(id: number, sessionVersion: number): Promise<AppUser | null> {
 	const [row] = await db.select().from(users).where(eq(users.id, id)).limit(1);
+	if (row && row.sessionVersion !== sessionVersion) return null;
 	return activeUserOf(row);
 }
 

@@ -24,6 +24,8 @@ import { PROJECTILE_SHAPES, SPEED_REFERENCES } from '../../schemas/range';
 export { ROLES };
 export const SESSION_STATUSES = ['open', 'closed'] as const;
 export const CALIBRATION_STATUSES = ['draft', 'approved', 'superseded'] as const;
+/** pending: to send (again, after nextAttemptAt); sent; failed: gave up after the last retry. */
+export const MAIL_STATUSES = ['pending', 'sent', 'failed'] as const;
 
 /** Raw file bytes of an import (up to 4 GiB in MariaDB's LONGBLOB). */
 const longBlob = customType<{ data: Buffer; driverData: Buffer }>({
@@ -64,6 +66,11 @@ export const users = mysqlTable(
 		/** Display units, e.g. {"pressure":"bar","speed":"m/s",...}; null means the lab default. */
 		unitPreferences: json<Record<string, string>>(),
 		disabledAt: optionalTime(),
+		/**
+		 * Copied into each session's JWT at sign-in. Raising it (sign-out, password change or reset,
+		 * role change, disabling) ends every session signed in before: guards.ts compares the two.
+		 */
+		sessionVersion: int().notNull().default(0),
 		createdAt: created(),
 		updatedAt: updated()
 	},
@@ -384,15 +391,42 @@ export const passwordTokens = mysqlTable(
 	(t) => [uniqueIndex('password_tokens_hash_unique').on(t.tokenHash)]
 );
 
-/** Failed sign-ins per key ("account:<email>" or "address:<ip>"), for the rate limit. */
-export const signInFailures = mysqlTable(
-	'sign_in_failures',
+/**
+ * Sign-in attempts per key ("account:<email>" or "address:<ip>"), as rate-limiter-flexible's
+ * MySQL store keeps them: one row per key, counted up in one INSERT … ON DUPLICATE KEY UPDATE
+ * inside a transaction (so parallel attempts cannot all read "below the limit"). The library
+ * writes positional VALUES (key, points, expire): keep these three columns in this order.
+ */
+export const signInLimits = mysqlTable('sign_in_limits', {
+	key: varchar({ length: 255 }).primaryKey(),
+	points: int().notNull().default(0),
+	/** Unix time in milliseconds when the count starts again from zero. */
+	expire: bigint({ mode: 'number', unsigned: true })
+});
+
+/** Outgoing e-mail waiting for, or done with, the SMTP server (mail/outbox.ts sends it). */
+export const mailOutbox = mysqlTable(
+	'mail_outbox',
 	{
 		id: bigint({ mode: 'number' }).autoincrement().primaryKey(),
-		bucket: varchar({ length: 300 }).notNull(),
-		at: created()
+		/** What the message is about, e.g. "session_report", with its record (a session id). */
+		kind: varchar({ length: 40 }).notNull(),
+		entityId: varchar({ length: 64 }),
+		recipient: varchar({ length: 254 }).notNull(),
+		subject: varchar({ length: 300 }).notNull(),
+		body: text().notNull(),
+		status: mysqlEnum(MAIL_STATUSES).notNull().default('pending'),
+		attempts: int().notNull().default(0),
+		/** Not sent before this time (the backoff after a failed attempt). */
+		nextAttemptAt: datetime({ mode: 'date', fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`),
+		/** The worker sending it now (one app instance), and since when; null when nobody is. */
+		claimedBy: varchar({ length: 64 }),
+		claimedAt: optionalTime(),
+		lastError: varchar({ length: 500 }),
+		sentAt: optionalTime(),
+		createdAt: created()
 	},
-	(t) => [index('sign_in_failures_key_at_idx').on(t.bucket, t.at)]
+	(t) => [index('mail_outbox_due_idx').on(t.status, t.nextAttemptAt), index('mail_outbox_entity_idx').on(t.kind, t.entityId)]
 );
 
 /** Saved CSV column mappings, reused for the next file from the same chronograph. */

@@ -15,7 +15,7 @@
 //
 // Same seed → same data. Idempotent: does nothing when the lab is already there.
 import { and, count, eq } from 'drizzle-orm';
-import bcrypt from 'bcryptjs';
+import { hashPassword } from '../accounts/passwords';
 import { airDensity, createRandom, solveCalibratedElevation, solveFillPressure, type Random } from '../../physics';
 import {
 	calibratedMuzzleSpeed,
@@ -35,8 +35,6 @@ import { approveCalibration, calibrationInForce, fitCalibration, recomputePredic
 const SEED = 20261202;
 const DAY_MS = 24 * 3600 * 1000;
 const BAR = 1e5;
-/** Demo passwords use a lower bcrypt cost than real accounts (12) to keep `npm test` quick. */
-const DEMO_BCRYPT_COST = 10;
 
 /** The "true" rig the shots come from (valve-flow family), unknown to the app until it calibrates. */
 interface RigTruth {
@@ -359,7 +357,7 @@ export async function seedDemo(db: Database, now = new Date()): Promise<boolean>
 	const [existing] = await db.select({ n: count() }).from(users);
 	if ((existing?.n ?? 0) > 0) return false;
 	const random = createRandom(SEED);
-	const passwordHash = await bcrypt.hash(DEMO_PASSWORD, DEMO_BCRYPT_COST);
+	const passwordHash = await hashPassword(DEMO_PASSWORD);
 	const daysAgo = (days: number, hours = 0) => new Date(now.getTime() - days * DAY_MS + hours * 3600 * 1000);
 
 	const ids = await db.transaction(async (tx) => {

@@ -9,6 +9,7 @@ import {
 } from '$lib/schemas/accounts';
 import { prefsFor } from '$lib/format';
 import { requireUser } from '$lib/server/guards';
+import { signInWithPassword } from '$lib/server/auth';
 import * as profile from '$lib/server/accounts/profile';
 import * as tokens from '$lib/server/accounts/tokens';
 import type { Actions, PageServerLoad } from './$types';
@@ -35,7 +36,9 @@ export const actions: Actions = {
 		const result = await profile.changePassword(user, current, password, event.getClientAddress());
 		if (!result.ok && 'field' in result) return setError(form, 'current', result.message);
 		if (!result.ok) return message(form, result.message, { status: 429 });
-		return message(form, 'Password changed. Use the new one from your next sign-in.');
+		// Every session of the user ended with the old password; this one goes on, signed in anew.
+		await signInWithPassword(event, user.email, password);
+		return message(form, 'Password changed. Your other sessions are signed out.');
 	},
 
 	saveUnits: async (event) => {

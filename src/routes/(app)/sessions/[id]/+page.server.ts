@@ -1,25 +1,25 @@
 import { error, fail, redirect } from '@sveltejs/kit';
 import { requireRole, requireUser } from '$lib/server/guards';
 import { idParam } from '$lib/server/forms';
+import { pageNumber } from '$lib/server/listing';
 import * as sessions from '$lib/server/sessions';
 import * as shots from '$lib/server/shots';
-import { notifyLeadsOfClose, sessionView } from '$lib/server/session-view';
+import * as sessionReport from '$lib/server/session-view';
+import { deliveryOf } from '$lib/server/mail/outbox';
 import type { Actions, PageServerLoad } from './$types';
 
 const SHOTS_PER_PAGE = 100;
 
-function pageParam(url: URL) {
-	const raw = url.searchParams.get('page');
-	const n = raw === null ? 1 : Number(raw);
-	if (!Number.isInteger(n) || n < 1) error(400, { message: `URL parameter "page" must be a whole number from 1; got "${raw}".` });
-	return n;
-}
-
 export const load: PageServerLoad = async (event) => {
 	await requireUser(event);
 	const id = idParam(event.params.id, 'range session');
-	const [view, table] = await Promise.all([sessionView(id), shots.listForSession(id, { page: pageParam(event.url), pageSize: SHOTS_PER_PAGE })]);
-	return { view, table, mailed: event.url.searchParams.get('mailed') };
+	const page = pageNumber(event.url);
+	const [view, table, delivery] = await Promise.all([
+		sessionReport.sessionView(id),
+		shots.listForSession(id, { page, pageSize: SHOTS_PER_PAGE }),
+		deliveryOf(sessionReport.SESSION_REPORT_MAIL, id)
+	]);
+	return { view, table, mailed: event.url.searchParams.get('mailed'), delivery };
 };
 
 /** A broken session rule (closed, not found, not allowed) becomes a message on the page. */
@@ -37,9 +37,18 @@ export const actions: Actions = {
 		} catch (err) {
 			return ruleFailure(err);
 		}
-		// The session is closed whatever happens to the mail; a mail failure is reported, not hidden.
-		const mailed = await notifyLeadsOfClose(id).then(String, () => 'failed');
+		// The report is queued, not sent here: closing never waits on the mail server.
+		const mailed = await sessionReport.queueSessionReport(id, user, 'closed');
 		redirect(303, `/sessions/${id}?mailed=${mailed}`);
+	},
+	resendReport: async (event) => {
+		const user = await requireRole(event, 'lead');
+		const id = idParam(event.params.id, 'range session');
+		const { session } = await sessions.getOr404(id);
+		if (session.deletedAt) error(404, { message: `No range session with id ${id}.` });
+		if (session.status !== 'closed') return fail(409, { message: 'The report goes out once the session is closed.' });
+		const queued = await sessionReport.queueSessionReport(id, user, 'resent');
+		redirect(303, `/sessions/${id}?mailed=${queued}`);
 	},
 	reopenSession: async (event) => {
 		const user = await requireRole(event, 'lead');

@@ -1,0 +1,4 @@
+import { sessionApi } from '$lib/server/api-handlers';
+import type { RequestHandler } from './$types';
+
+export const POST: RequestHandler = sessionApi.resendReport;
