@@ -136,6 +136,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/sessions/[id]/close': { path: `/api/v1/sessions/${MISSING_ID}/close`, methods: { POST: 'range_officer' } },
 	'/api/v1/sessions/[id]/shots': { path: `/api/v1/sessions/${MISSING_ID}/shots`, methods: { GET: 'viewer', POST: 'range_officer' } },
 	'/api/v1/shots/[id]': { path: `/api/v1/shots/${MISSING_ID}`, methods: { GET: 'viewer', PATCH: 'analyst', DELETE: 'analyst' } },
+	'/api/v1/shots/[id]/void': { path: `/api/v1/shots/${MISSING_ID}/void`, methods: { POST: 'range_officer' } },
 	'/api/v1/predictions': { methods: { POST: 'viewer' } },
 	'/api/v1/imports': { methods: { POST: 'analyst' } },
 	'/api/v1/setup-sheet': { methods: { POST: 'viewer' } }

@@ -1,13 +1,12 @@
 // What the session page, its printable report and the close-out e-mail show: the session with
 // its rig, projectile and plan, every live shot with its prediction, and the statistics.
 import { error } from '@sveltejs/kit';
-import { eq, and, isNull } from 'drizzle-orm';
 import { db } from './db';
-import { users } from './db/schema';
 import * as sessions from './sessions';
 import * as shots from './shots';
 import { ReconcileError, sessionStatistics } from './reconcile';
-import { appLink, sendMail } from './mail';
+import { appLink } from './mail';
+import { mailLeads } from './leads';
 
 export async function sessionView(id: number) {
 	const [view, allShots, statistics] = await Promise.all([
@@ -47,8 +46,5 @@ export function closeOutText(view: SessionView, link: string) {
 /** E-mail every active lead the close-out report of a session. Returns how many were sent. */
 export async function notifyLeadsOfClose(id: number) {
 	const view = await sessionView(id);
-	const leads = await db.select({ email: users.email }).from(users).where(and(eq(users.role, 'lead'), isNull(users.disabledAt)));
-	const text = closeOutText(view, appLink(`/sessions/${id}/report`));
-	for (const lead of leads) await sendMail({ to: lead.email, subject: `Session closed: ${view.session.title}`, text });
-	return leads.length;
+	return mailLeads(`Session closed: ${view.session.title}`, closeOutText(view, appLink(`/sessions/${id}/report`)));
 }
