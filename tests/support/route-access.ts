@@ -89,7 +89,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 		page: 'viewer',
 		actions: { closeSession: 'range_officer', reopenSession: 'lead', deleteSession: 'range_officer', restoreSession: 'range_officer' }
 	},
-	'/(app)/sessions/[id]/log': { path: `/sessions/${MISSING_ID}/log`, page: 'range_officer' },
+	'/(app)/sessions/[id]/log': { path: `/sessions/${MISSING_ID}/log`, page: 'range_officer', actions: { correctShot: 'range_officer', voidShot: 'range_officer' } },
 	'/(app)/sessions/[id]/report': { path: `/sessions/${MISSING_ID}/report`, page: 'viewer' },
 
 	// Calibrations: everyone reads; analysts fit drafts, leads approve. Rig health is for leads.
