@@ -3,15 +3,20 @@
 /// <reference lib="esnext" />
 /// <reference lib="webworker" />
 // Keeps the shot-logging page usable when the firing line loses the network: the app's built
-// assets are cached at install, and the logging pages (HTML and data) are cached as they are
-// visited, served from the cache only when the network fails. Nothing else is cached, and API
-// calls always go to the network (the page's own outbox handles those).
+// assets and its offline page are cached at install, and the logging pages (HTML and data) are
+// cached as they are visited and when a page asks for them ($lib/offline: a logging page reached
+// by in-app navigation was never loaded in full, so it asks), served from the cache only when the
+// network fails. A page navigated to offline and not cached gets the offline page (with the shots
+// waiting on the tablet), never the browser's error. API calls always go to the network (the
+// page's own outbox handles those).
 import { build, files, version } from '$service-worker';
+import { logPageUrls, type CacheLogPagesMessage } from '$lib/offline';
 
 const sw = self as unknown as ServiceWorkerGlobalScope;
 const CACHE = `shotwright-${version}`;
 const ASSETS = new Set([...build, ...files]);
 const LOG_PAGE = /^\/sessions\/\d+\/log(\/__data\.json)?$/;
+const OFFLINE_PAGE = '/offline.html';
 
 sw.addEventListener('install', (event) => {
 	event.waitUntil(
@@ -31,6 +36,31 @@ sw.addEventListener('activate', (event) => {
 	);
 });
 
+/** Store a logging page's answer; a redirect (e.g. to sign-in) or an error is not the page. */
+async function keep(cache: Cache, url: string, response: Response) {
+	if (response.ok && !response.redirected) await cache.put(url, response.clone());
+}
+
+sw.addEventListener('message', (event) => {
+	const message = event.data as CacheLogPagesMessage | undefined;
+	if (message?.type !== 'cache-log-pages' || !Array.isArray(message.sessionIds)) return;
+	event.waitUntil(
+		(async () => {
+			const cache = await caches.open(CACHE);
+			const urls = message.sessionIds.filter((id) => Number.isInteger(id) && id > 0).flatMap(logPageUrls);
+			await Promise.all(
+				urls.map(async (url) => {
+					try {
+						await keep(cache, url, await fetch(url, { credentials: 'same-origin' }));
+					} catch {
+						// Offline already: whatever is cached stays.
+					}
+				})
+			);
+		})()
+	);
+});
+
 sw.addEventListener('fetch', (event) => {
 	const request = event.request;
 	if (request.method !== 'GET') return;
@@ -41,17 +71,23 @@ sw.addEventListener('fetch', (event) => {
 		event.respondWith(caches.match(url.pathname).then((hit) => hit ?? fetch(request)));
 		return;
 	}
-	if (!LOG_PAGE.test(url.pathname)) return;
+	const logPage = LOG_PAGE.test(url.pathname);
+	if (!logPage && request.mode !== 'navigate') return;
 	event.respondWith(
 		(async () => {
 			const cache = await caches.open(CACHE);
 			try {
 				const response = await fetch(request);
-				if (response.ok) await cache.put(request, response.clone());
+				if (logPage) await keep(cache, url.pathname, response);
 				return response;
 			} catch (err) {
-				const hit = await cache.match(request);
+				// Data requests carry SvelteKit's query (x-sveltekit-invalidated): matched by path.
+				const hit = logPage ? await cache.match(url.pathname, { ignoreSearch: true }) : undefined;
 				if (hit) return hit;
+				if (request.mode === 'navigate') {
+					const offline = await cache.match(OFFLINE_PAGE);
+					if (offline) return offline;
+				}
 				throw err;
 			}
 		})()

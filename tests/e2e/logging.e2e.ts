@@ -1,37 +1,11 @@
 import { readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { expect, test, type Page } from '@playwright/test';
-import { signIn } from './support';
+import { openSession, signIn } from './support';
 
 // A 10-inch tablet in portrait, with touch (the firing line's device).
 test.use({ viewport: { width: 800, height: 1280 }, hasTouch: true });
 
-async function openSession(page: Page, title: string) {
-	const rigs = await (await page.request.get('/api/v1/rigs')).json();
-	const projectiles = await (await page.request.get('/api/v1/projectiles')).json();
-	const rig = rigs.rows.find((r: { name: string }) => r.name.startsWith('H1'));
-	const projectile = projectiles.rows.find((p: { name: string }) => p.name === 'Ice ball 25 mm');
-	const response = await page.request.post('/api/v1/sessions', {
-		// As the app's own pages send it: a cookie-authenticated write must name its origin.
-		headers: { origin: new URL(page.url()).origin },
-		data: {
-			title,
-			rigId: rig.id,
-			projectileId: projectile.id,
-			startedAt: new Date().toISOString(),
-			targetDistanceM: 5,
-			elevationDeg: 2.3,
-			launchHeightM: 1.2,
-			aimHeightM: 1.2,
-			downrangeChronoM: 4.5,
-			temperatureC: 5,
-			pressurePa: 101_000,
-			relativeHumidity: 0.7
-		}
-	});
-	expect(response.status(), await response.text()).toBe(201);
-	return (await response.json()).id as number;
-}
 
 async function logShot(page: Page, n: number) {
 	await page.getByLabel(/^Muzzle speed/).fill((25 + (n % 5) * 0.1).toFixed(2));

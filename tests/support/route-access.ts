@@ -89,7 +89,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 		page: 'viewer',
 		actions: { closeSession: 'range_officer', reopenSession: 'lead', deleteSession: 'range_officer', restoreSession: 'range_officer', resendReport: 'lead' }
 	},
-	'/(app)/sessions/[id]/log': { path: `/sessions/${MISSING_ID}/log`, page: 'range_officer' },
+	'/(app)/sessions/[id]/log': { path: `/sessions/${MISSING_ID}/log`, page: 'range_officer', actions: { correctShot: 'range_officer', voidShot: 'range_officer' } },
 	'/(app)/sessions/[id]/report': { path: `/sessions/${MISSING_ID}/report`, page: 'viewer' },
 
 	// Calibrations: everyone reads; analysts fit drafts, leads approve. Rig health is for leads.
@@ -137,6 +137,7 @@ export const ROUTE_ACCESS: Record<string, RouteAccess> = {
 	'/api/v1/sessions/[id]/report-mail': { path: `/api/v1/sessions/${MISSING_ID}/report-mail`, methods: { POST: 'lead' } },
 	'/api/v1/sessions/[id]/shots': { path: `/api/v1/sessions/${MISSING_ID}/shots`, methods: { GET: 'viewer', POST: 'range_officer' } },
 	'/api/v1/shots/[id]': { path: `/api/v1/shots/${MISSING_ID}`, methods: { GET: 'viewer', PATCH: 'analyst', DELETE: 'analyst' } },
+	'/api/v1/shots/[id]/void': { path: `/api/v1/shots/${MISSING_ID}/void`, methods: { POST: 'range_officer' } },
 	'/api/v1/predictions': { methods: { POST: 'viewer' } },
 	'/api/v1/imports': { methods: { POST: 'analyst' } },
 	'/api/v1/setup-sheet': { methods: { POST: 'viewer' } },

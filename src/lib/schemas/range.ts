@@ -133,7 +133,12 @@ export const shotInput = z.object({
 	miss: z.boolean({ error: 'Miss must be true or false.' }).default(false),
 	note: z.string().trim().max(1000, 'Note is at most 1000 characters.').nullish(),
 	temperatureC: quantity('Shot air temperature', -60, 60, '°C').nullish(),
-	pressurePa: quantity('Shot barometric pressure', 50_000, 110_000, 'Pa').nullish()
+	pressurePa: quantity('Shot barometric pressure', 50_000, 110_000, 'Pa').nullish(),
+	/** The officer confirms a fill pressure above the rig's rated working pressure was really fired so (else it is refused as a typo). */
+	aboveRatingConfirmed: z
+		.boolean({ error: 'aboveRatingConfirmed must be true or false.' })
+		.optional()
+		.meta({ description: 'true: the fill pressure is above the rig’s rated working pressure and was really fired so (kept as a safety event). Without it such a shot is refused (422).' })
 });
 export type ShotInput = z.infer<typeof shotInput>;
 
@@ -151,6 +156,12 @@ export const shotUpdate = shotInput
 	})
 	.partial();
 export type ShotUpdate = z.infer<typeof shotUpdate>;
+
+/** Voiding a shot at the firing line: the reason is kept with it. */
+export const shotVoid = z.object({
+	reason: z.string({ error: 'Give a reason for voiding the shot.' }).trim().min(1, 'Give a reason for voiding the shot.').max(500, 'The reason is at most 500 characters.')
+});
+export type ShotVoid = z.infer<typeof shotVoid>;
 
 /** zod issues as {path, message} pairs for API error bodies. */
 export function issuesOf(error: z.ZodError) {

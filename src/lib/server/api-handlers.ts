@@ -8,7 +8,7 @@ import { z } from 'zod';
 import { airDensity } from '$lib/physics/air';
 import type { Role } from '$lib/roles';
 import { predictionInput } from '$lib/schemas/prediction';
-import { EARLIEST_DATETIME, LATEST_DATETIME, projectileInput, rangeSessionInput, rigInput, shotInput, shotUpdate, testPlanInput } from '$lib/schemas/range';
+import { EARLIEST_DATETIME, LATEST_DATETIME, projectileInput, rangeSessionInput, rigInput, shotInput, shotUpdate, shotVoid, testPlanInput } from '$lib/schemas/range';
 import { endpoint, fail, idParam, ok, parseBody, requestJson } from './api';
 import { requireRole, requireUser } from './guards';
 import { boundedInt, MAX_PAGE, MAX_PAGE_SIZE, parseListParams, type ListParams, type Page } from './listing';
@@ -243,6 +243,14 @@ export const shotApi = {
 		const id = shotId(event);
 		const patch = await parseBody(event.request, shotUpdate);
 		await shots.update(id, patch, user);
+		return ok(await shots.getWithPrediction(id));
+	}),
+	/** Void at the firing line: kept with its reason and shown as voided, out of the statistics (the officer's own shots while the session is open). */
+	void: endpoint(async (event) => {
+		const user = await requireRole(event, 'range_officer');
+		const id = shotId(event);
+		const { reason } = await parseBody(event.request, shotVoid);
+		await shots.setVoided(id, reason, user);
 		return ok(await shots.getWithPrediction(id));
 	}),
 	/** Soft delete: the shot stays in the record, marked deleted, and leaves the statistics. */

@@ -14,6 +14,7 @@ import {
 	rigInput,
 	shotInput,
 	shotUpdate,
+	shotVoid,
 	testPlanInput
 } from '$lib/schemas/range';
 import { MAX_PAGE_SIZE } from './listing';
@@ -130,6 +131,10 @@ const shot = z.object({
 	firedAt: dateTime,
 	enteredBy: z.int().nullable(),
 	importId: z.int().nullable(),
+	aboveRating: z.boolean().meta({ description: 'Fired above the rig’s rated working pressure, confirmed by the officer: a safety event (audited, mailed to the leads).' }),
+	voidedAt: dateTime.nullable().meta({ description: 'Voided at the firing line: the shot stays in the record, out of the statistics.' }),
+	voidReason: z.string().nullable().meta({ description: 'Why the shot was voided.' }),
+	voidedBy: z.int().nullable().meta({ description: 'Who voided it.' }),
 	...stamps,
 	prediction: shotPrediction
 });
@@ -217,6 +222,7 @@ const COMPONENTS = {
 	RangeSessionPage: { schema: page(sessionRow), io: 'output' },
 	ShotInput: { schema: shotInput, io: 'input' },
 	ShotUpdate: { schema: shotUpdate, io: 'input' },
+	ShotVoid: { schema: shotVoid, io: 'input' },
 	Shot: { schema: shot, io: 'output' },
 	ShotPage: { schema: page(shot), io: 'output' },
 	RigGeometry: { schema: rigGeometry, io: 'input' },
@@ -603,13 +609,18 @@ export const OPERATIONS: Operation[] = [
 		tag: 'Shots',
 		summary: 'Log a shot',
 		description:
-			'Idempotent by clientUuid: make a UUID per shot on the client and resend freely; a resend answers 200 with the stored shot and changes nothing. Without a sequence the server assigns the next free one (distinct across tablets). A closed session refuses new shots except from a lead.',
+			'Idempotent by clientUuid: make a UUID per shot on the client and resend freely; a resend answers 200 with the stored shot and changes nothing. Without a sequence the server assigns the next free one (distinct across tablets). A closed session refuses new shots except from a lead. A fill pressure above the rig’s rated working pressure is refused as a likely typo (422, issue on fillGaugePa) unless the body says "aboveRatingConfirmed": true; a confirmed one is stored with aboveRating set, audited and mailed to the leads.',
 		access: 'range_officer',
 		parameters: [idParameter('range session')],
 		body: { schema: 'ShotInput', example: EXAMPLES.shot },
 		responses: [
 			{ status: 201, description: 'The new shot, with its prediction.', schema: 'Shot' },
-			{ status: 200, description: 'This clientUuid was logged before: the stored shot.', schema: 'Shot' }
+			{ status: 200, description: 'This clientUuid was logged before: the stored shot.', schema: 'Shot' },
+			{
+				status: 422,
+				description: 'fillGaugePa is above the rig’s rated working pressure and aboveRatingConfirmed is not true: check the reading, or confirm it was really fired so.',
+				schema: 'ApiError'
+			}
 		],
 		errors: [400, 403, 404, 409]
 	},
@@ -637,6 +648,20 @@ export const OPERATIONS: Operation[] = [
 		body: { schema: 'ShotUpdate', example: { muzzleSpeedMps: 24.18, note: 'Chronograph re-read from the video.' } },
 		responses: [{ status: 200, description: 'The shot as stored now.', schema: 'Shot' }],
 		errors: [400, 403, 404, 409]
+	},
+	{
+		method: 'post',
+		path: '/api/v1/shots/{id}/void',
+		operationId: 'voidShot',
+		tag: 'Shots',
+		summary: 'Void a shot',
+		description:
+			'Void and re-shoot: the shot stays in the record with its reason and voidedAt set, shown as voided, and leaves the statistics and the plan’s count. A range officer may void the shots they logged while the session is open; analysts any shot. Audited.',
+		access: 'range_officer',
+		parameters: [idParameter('shot')],
+		body: { schema: 'ShotVoid', example: { reason: 'Chronograph did not trigger.' } },
+		responses: [{ status: 200, description: 'The shot, with voidedAt and voidReason set.', schema: 'Shot' }],
+		errors: [400, 403, 404]
 	},
 	{
 		method: 'delete',

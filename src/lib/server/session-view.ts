@@ -1,14 +1,12 @@
 // What the session page, its printable report and the close-out e-mail show: the session with
 // its rig, projectile and plan, every live shot with its prediction, and the statistics.
 import { error } from '@sveltejs/kit';
-import { eq, and, isNull } from 'drizzle-orm';
 import { db } from './db';
-import { users } from './db/schema';
 import * as sessions from './sessions';
 import * as shots from './shots';
 import { ReconcileError, sessionStatistics } from './reconcile';
 import { appLink } from './mail';
-import { enqueueMail } from './mail/outbox';
+import { queueForLeads } from './leads';
 import { recordAudit } from './audit';
 
 export async function sessionView(id: number) {
@@ -57,13 +55,8 @@ export async function queueSessionReport(id: number, actor: AppUser, reason: 'cl
 	const view = await sessionView(id);
 	const text = closeOutText(view, appLink(`/sessions/${id}/report`));
 	return db.transaction(async (tx) => {
-		const leads = await tx.select({ email: users.email }).from(users).where(and(eq(users.role, 'lead'), isNull(users.disabledAt)));
-		const subject = `Session closed: ${view.session.title}`;
-		await enqueueMail(
-			tx,
-			leads.map((lead) => ({ kind: SESSION_REPORT_MAIL, entityId: id, to: lead.email, subject, text }))
-		);
-		await recordAudit(tx, { userId: actor.id, action: reason === 'closed' ? 'report_mail_queued' : 'report_mail_resent', entityType: 'range_session', entityId: id, after: { leads: leads.length } });
-		return leads.length;
+		const queued = await queueForLeads(tx, { kind: SESSION_REPORT_MAIL, entityId: id, subject: `Session closed: ${view.session.title}`, text });
+		await recordAudit(tx, { userId: actor.id, action: reason === 'closed' ? 'report_mail_queued' : 'report_mail_resent', entityType: 'range_session', entityId: id, after: { leads: queued } });
+		return queued;
 	});
 }

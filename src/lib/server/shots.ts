@@ -4,10 +4,12 @@
 import { and, asc, count, desc, eq, inArray, isNotNull, isNull, sql } from 'drizzle-orm';
 import type { ShotInput, ShotUpdate } from '$lib/schemas/range';
 import type { ResultSetHeader } from 'mysql2';
-import { db, pool } from './db';
+import { db, pool, type Transaction } from './db';
+import { appLink } from './mail';
+import { queueForLeads } from './leads';
 import * as raw from './db/raw';
 import { name, selectList, tableName } from './db/raw';
-import { rangeSessions, shotPredictions, shots } from './db/schema';
+import { auditEvents, rangeSessions, rigs, shotPredictions, shots } from './db/schema';
 import { recordAudit } from './audit';
 import {
 	insertPredictionIfInputsUnchanged,
@@ -45,22 +47,45 @@ const SHOT_BY_UUID = `SELECT ${name(shots.id)} AS id, ${name(shots.sessionId)} A
  * or NULL when the INSERT stored nothing (LAST_INSERT_ID() would still hold an earlier shot's id);
  * answers shot_id and next_sequence.
  */
-const INSERTED_SHOT = `SELECT ${INSERTED_SHOT_ID_VARIABLE} := IF(ROW_COUNT() = 1, LAST_INSERT_ID(), NULL) AS shot_id, @next_sequence AS next_sequence`;
+const INSERTED_SHOT = `SELECT ${INSERTED_SHOT_ID_VARIABLE} := IF(ROW_COUNT() = 1, LAST_INSERT_ID(), NULL) AS shot_id, @next_sequence AS next_sequence, @above_rating AS above_rating`;
+/**
+ * Whether the fill pressure lies above the rated working pressure of the session's rig, into
+ * @above_rating (read after the session's lock, as locks go: sessions, then rigs). The shot's
+ * INSERT refuses such a shot unless the officer confirmed it (aboveRatingConfirmed), and stores
+ * the flag; the rating read is kept in @rated_pressure_pa for the audit event.
+ */
+const RATED_PRESSURE = `SET @rated_pressure_pa = (SELECT ${name(rigs.ratedPressurePa, 'r')} FROM ${tableName(rangeSessions)} s JOIN ${tableName(rigs)} r ON ${name(rigs.id, 'r')} = ${name(rangeSessions.rigId, 's')} WHERE ${name(rangeSessions.id, 's')} = ?)`;
+const ABOVE_RATING = `SET @above_rating = COALESCE(? > @rated_pressure_pa, FALSE)`;
+/**
+ * The audit event of a shot stored above its rig's rating (a safety event), in the shot's batch;
+ * inserts nothing for any other shot.
+ */
+const ABOVE_RATING_AUDIT =
+	`INSERT INTO ${tableName(auditEvents)} (${name(auditEvents.userId)}, ${name(auditEvents.action)}, ${name(auditEvents.entityType)}, ${name(auditEvents.entityId)}, ${name(auditEvents.after)}) ` +
+	`SELECT ?, 'above_rating', 'shot', ${INSERTED_SHOT_ID_VARIABLE}, JSON_OBJECT('sessionId', ?, 'clientUuid', ?, 'fillGaugePa', ?, 'ratedPressurePa', CAST(@rated_pressure_pa AS DOUBLE)) ` +
+	`FROM DUAL WHERE @above_rating AND ${INSERTED_SHOT_ID_VARIABLE} IS NOT NULL`;
 /** The next free sequence number of the session, into @next_sequence (read after the session's lock: see storeShot). */
 const NEXT_SEQUENCE = `SET @next_sequence = (SELECT COALESCE(MAX(${name(shots.sequence)}), 0) + 1 FROM ${tableName(shots)} WHERE ${name(shots.sessionId)} = ?)`;
 
 /**
- * The INSERT of a shot whose sequence is the given one or, when that is null, @next_sequence; it
- * inserts nothing when the session is deleted, or closed and the user may not edit closed ones.
+ * The INSERT of a shot whose sequence is the given one or, when that is null, @next_sequence, and
+ * whose aboveRating flag is @above_rating; it inserts nothing when the session is deleted, or
+ * closed and the user may not edit closed ones, or the fill pressure is above the rig's rating
+ * and not confirmed.
  */
-function insertShotStatement(values: Omit<typeof shots.$inferInsert, 'sequence'> & { sequence: number | null }, mayEditClosed: boolean): raw.Statement {
+function insertShotStatement(
+	values: Omit<typeof shots.$inferInsert, 'sequence'> & { sequence: number | null },
+	mayEditClosed: boolean,
+	aboveRatingConfirmed: boolean
+): raw.Statement {
 	const { keys, names, params } = raw.insertColumns(shots, values as typeof shots.$inferInsert);
-	const placeholders = keys.map((key) => (key === 'sequence' ? 'COALESCE(?, @next_sequence)' : '?'));
+	const placeholders = keys.map((key) => (key === 'sequence' ? 'COALESCE(?, @next_sequence)' : key === 'aboveRating' ? '@above_rating' : '?'));
 	return {
 		sql:
 			`INSERT INTO ${tableName(shots)} (${names.join(', ')}) SELECT ${placeholders.join(', ')} FROM ${tableName(rangeSessions)} s ` +
-			`WHERE ${name(rangeSessions.id, 's')} = ? AND ${name(rangeSessions.deletedAt, 's')} IS NULL AND (${name(rangeSessions.status, 's')} <> 'closed' OR ?)`,
-		values: [...params, values.sessionId, mayEditClosed]
+			`WHERE ${name(rangeSessions.id, 's')} = ? AND ${name(rangeSessions.deletedAt, 's')} IS NULL AND (${name(rangeSessions.status, 's')} <> 'closed' OR ?) ` +
+			`AND (NOT @above_rating OR ?)`,
+		values: [...params.filter((_, i) => keys[i] !== 'aboveRating'), values.sessionId, mayEditClosed, aboveRatingConfirmed]
 	};
 }
 
@@ -100,9 +125,42 @@ export async function create(sessionId: number, input: ShotInput, user: AppUser)
 		if (!shot) throw new Error(`shot ${stored.resentId} vanished after it was stored`);
 		return { shot, created: false };
 	}
+	if (stored.shot.aboveRating) await notifyLeadsOfAboveRating(stored.shot, stored.session);
 	if (stored.prediction) return { shot: { ...stored.shot, prediction: stored.prediction }, created: true };
 	const prediction = await predictStoredShot(stored.shot, stored.session, stored.fresh);
 	return { shot: { ...stored.shot, prediction }, created: true };
+}
+
+/** The refusal of an unconfirmed fill pressure above the rig's rated working pressure (most likely a typo). */
+function aboveRatingRefusal() {
+	return new SessionRuleError(
+		'fillGaugePa',
+		"The fill pressure is above the rig's rated working pressure: most likely a typo. Check the gauge reading; if the shot really was fired so, confirm it (aboveRatingConfirmed) and it is kept as a safety event.",
+		422
+	);
+}
+
+/** Mail the leads about a shot confirmed above its rig's rating; the shot is stored whether or not the mail goes out. */
+async function notifyLeadsOfAboveRating(shot: Shot, session: RangeSession) {
+	try {
+		const [rig] = await db.select({ name: rigs.name, ratedPressurePa: rigs.ratedPressurePa }).from(rigs).where(eq(rigs.id, session.rigId));
+		const bar = (pa: number) => `${(pa / 1e5).toFixed(2)} bar (${Math.round(pa)} Pa gauge)`;
+		await queueForLeads(db, {
+			kind: 'safety_event',
+			entityId: shot.id,
+			subject: `Safety: shot above rated pressure in ${session.title}`,
+			text: [
+				`Shot #${shot.sequence} of range session "${session.title}" was fired at ${bar(shot.fillGaugePa)},`,
+				`above the rated working pressure of rig ${rig?.name ?? session.rigId}${rig ? ` (${bar(rig.ratedPressurePa)})` : ''}.`,
+				'The range officer confirmed the reading; the shot is kept and marked as a safety event.',
+				'Check the rig, its relief valve and its components before it is filled again.',
+				'',
+				`Session: ${appLink(`/sessions/${session.id}`)}`
+			].join('\n')
+		});
+	} catch (err) {
+		console.error(`Mail about shot ${shot.id} above its rig's rating failed:`, err);
+	}
 }
 
 type Stored =
@@ -141,13 +199,16 @@ async function storeShot(sessionId: number, input: ShotInput, user: AppUser): Pr
 	// Every column with a default is given, so the stored row is known (raw.insertedRow) but for
 	// its id and, when the server assigns it, its sequence number.
 	const now = new Date();
+	const { aboveRatingConfirmed, ...shotValues } = input;
 	const values = {
-		...input,
+		...shotValues,
 		sessionId,
 		sequence: input.sequence ?? null,
 		firedAt: input.firedAt ?? now,
 		miss: input.miss ?? false,
 		enteredBy: user.id,
+		// Written as @above_rating by the INSERT (insertShotStatement); set from the batch's answer below.
+		aboveRating: false,
 		createdAt: now,
 		updatedAt: now
 	};
@@ -162,16 +223,29 @@ async function storeShot(sessionId: number, input: ShotInput, user: AppUser): Pr
 		const results = await raw.batch(connection, [
 			{ sql: `${SESSION_READ} FOR UPDATE`, values: [sessionId] },
 			{ sql: NEXT_SEQUENCE, values: [sessionId] },
-			insertShotStatement(values, hasRole(user.role, 'lead')),
+			{ sql: RATED_PRESSURE, values: [sessionId] },
+			{ sql: ABOVE_RATING, values: [input.fillGaugePa] },
+			insertShotStatement(values, hasRole(user.role, 'lead'), aboveRatingConfirmed === true),
 			{ sql: INSERTED_SHOT },
+			{ sql: ABOVE_RATING_AUDIT, values: [user.id, sessionId, input.clientUuid, input.fillGaugePa] },
 			ahead ? insertPredictionIfInputsUnchanged(input.clientUuid, ahead, known.versions) : predictionInputsRead(sessionId),
 			commit()
 		]);
-		const [sessionRows, , inserted, idRows, last] = results as [SessionRows, unknown, ResultSetHeader, { '': { next_sequence: number } }[], unknown];
+		const [sessionRows, , , , inserted, idRows, , last] = results as [
+			SessionRows,
+			unknown,
+			unknown,
+			unknown,
+			ResultSetHeader,
+			{ '': { next_sequence: number; above_rating: number | string } }[],
+			unknown,
+			unknown
+		];
 		return {
 			sessionRows,
 			inserted,
 			nextSequence: idRows[0][''].next_sequence,
+			aboveRating: Number(idRows[0][''].above_rating) === 1,
 			inputRows: ahead ? null : (last as PredictionInputRows),
 			predicted: ahead ? (last as ResultSetHeader).affectedRows === 1 : false
 		};
@@ -187,9 +261,10 @@ async function storeShot(sessionId: number, input: ShotInput, user: AppUser): Pr
 		const resentId = await resent(pool().pool, sessionId, input.clientUuid);
 		if (resentId !== null) return { resentId };
 		assertWritable(session, user);
+		if (result.aboveRating) throw aboveRatingRefusal();
 		throw new Error(`shot of session ${sessionId} not inserted although the session is writable`);
 	}
-	const shot = raw.insertedRow(shots, { ...values, id: result.inserted.insertId, sequence: input.sequence ?? result.nextSequence });
+	const shot = raw.insertedRow(shots, { ...values, id: result.inserted.insertId, sequence: input.sequence ?? result.nextSequence, aboveRating: result.aboveRating });
 	const prediction = ahead && result.predicted ? { ...ahead, shotId: shot.id } : null;
 	return { shot, prediction, session, fresh };
 }
@@ -269,15 +344,36 @@ export async function get(shotId: number) {
 	return row ?? null;
 }
 
-export async function update(shotId: number, patch: ShotUpdate, user: AppUser) {
+/**
+ * Who may change a shot: an analyst or above any shot (a closed session only a lead); a range
+ * officer only the shots they logged, and only while the session is open.
+ */
+function assertMayChange(shot: Shot, session: RangeSession, user: AppUser) {
+	assertWritable(session, user);
+	if (hasRole(user.role, 'analyst')) return;
+	if (shot.enteredBy !== user.id) throw new SessionRuleError('shotId', 'You may correct or void only the shots you logged; ask an analyst.', 403);
+	if (session.status !== 'open') throw new SessionRuleError('sessionId', 'This session is closed; only a lead may change it now.', 403);
+}
+
+/** A changed fill pressure above the rig's rating: refused unless confirmed; the flag follows the pressure. */
+async function aboveRatingAfterChange(tx: Transaction, session: RangeSession, fillGaugePa: number, confirmed: boolean) {
+	const [rig] = await tx.select({ ratedPressurePa: rigs.ratedPressurePa }).from(rigs).where(eq(rigs.id, session.rigId));
+	const above = rig !== undefined && fillGaugePa > rig.ratedPressurePa;
+	if (above && !confirmed) throw aboveRatingRefusal();
+	return above;
+}
+
+export async function update(shotId: number, { aboveRatingConfirmed, ...patch }: ShotUpdate, user: AppUser) {
 	try {
 		return await db.transaction(async (tx) => {
 			const [current] = await tx.select().from(shots).where(eq(shots.id, shotId));
 			if (!current || current.deletedAt) throw new SessionRuleError('shotId', `No shot with id ${shotId}.`, 404);
 			const session = await lockForWrite(tx, current.sessionId);
-			assertWritable(session, user);
 			const [before] = await tx.select().from(shots).where(eq(shots.id, shotId));
-			const changes = Object.fromEntries(Object.entries(patch).filter(([, v]) => v !== undefined));
+			assertMayChange(before, session, user);
+			const changes: Partial<Shot> = Object.fromEntries(Object.entries(patch).filter(([, v]) => v !== undefined));
+			if (changes.fillGaugePa !== undefined && changes.fillGaugePa !== before.fillGaugePa)
+				changes.aboveRating = await aboveRatingAfterChange(tx, session, changes.fillGaugePa, aboveRatingConfirmed === true);
 			if (Object.keys(changes).length > 0) await tx.update(shots).set(changes).where(eq(shots.id, shotId));
 			await recomputePredictions(tx, { shotIds: [shotId] });
 			const [after] = await tx.select().from(shots).where(eq(shots.id, shotId));
@@ -289,6 +385,25 @@ export async function update(shotId: number, patch: ShotUpdate, user: AppUser) {
 			throw new SessionRuleError('sequence', `Sequence number ${patch.sequence} is already taken in this session.`, 409);
 		throw err;
 	}
+}
+
+/**
+ * Void a shot at the firing line ("void and re-shoot"): it stays in the record with its reason,
+ * shown as voided, and leaves the statistics and the plan's count. Undone with reason null.
+ */
+export async function setVoided(shotId: number, reason: string | null, user: AppUser) {
+	return db.transaction(async (tx) => {
+		const [current] = await tx.select().from(shots).where(eq(shots.id, shotId));
+		if (!current || current.deletedAt) throw new SessionRuleError('shotId', `No shot with id ${shotId}.`, 404);
+		const session = await lockForWrite(tx, current.sessionId);
+		const [before] = await tx.select().from(shots).where(eq(shots.id, shotId));
+		assertMayChange(before, session, user);
+		const voided = reason === null ? { voidedAt: null, voidReason: null, voidedBy: null } : { voidedAt: new Date(), voidReason: reason, voidedBy: user.id };
+		await tx.update(shots).set(voided).where(eq(shots.id, shotId));
+		const [after] = await tx.select().from(shots).where(eq(shots.id, shotId));
+		await recordAudit(tx, { userId: user.id, action: reason === null ? 'unvoid' : 'void', entityType: 'shot', entityId: shotId, before, after });
+		return after;
+	});
 }
 
 export async function setDeleted(shotId: number, deleted: boolean, user: AppUser) {

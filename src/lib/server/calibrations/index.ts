@@ -166,7 +166,7 @@ async function sessionsOfPair(tx: Executor, rigId: number, projectileId: number)
 			distinctFills: sql<number>`count(distinct ${shots.fillGaugePa})`.mapWith(Number)
 		})
 		.from(shots)
-		.where(and(inArray(shots.sessionId, sessionRows.map((s) => s.id)), isNull(shots.deletedAt)))
+		.where(and(inArray(shots.sessionId, sessionRows.map((s) => s.id)), isNull(shots.deletedAt), isNull(shots.voidedAt)))
 		.groupBy(shots.sessionId);
 	const bySession = new Map(stats.map((s) => [s.sessionId, s]));
 	return sessionRows.map((s) => {
@@ -384,7 +384,7 @@ async function residualsUnder(tx: Executor, row: CalibrationRow, rig: RigRow, pr
 		? await tx
 				.select()
 				.from(shots)
-				.where(and(inArray(shots.sessionId, sessionRows.map((s) => s.id)), isNull(shots.deletedAt)))
+				.where(and(inArray(shots.sessionId, sessionRows.map((s) => s.id)), isNull(shots.deletedAt), isNull(shots.voidedAt)))
 				.orderBy(asc(shots.sessionId), asc(shots.sequence))
 		: [];
 	const excludedRows = await tx

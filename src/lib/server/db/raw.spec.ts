@@ -24,8 +24,8 @@ describe('raw SQL helpers', () => {
 		expect(keys).toContain('firedAt');
 		expect(names[keys.indexOf('firedAt')]).toBe('`fired_at`');
 		expect(params[keys.indexOf('firedAt')]).toBe('2026-12-02 07:00:00.123');
-		expect(insertedRow(shots, { ...values, id: 9 })).toMatchObject({ id: 9, note: null, deletedAt: null, firedAt: at });
+		expect(insertedRow(shots, { ...values, aboveRating: false, id: 9 })).toMatchObject({ id: 9, note: null, deletedAt: null, firedAt: at });
 		const { createdAt: _left, ...withoutCreated } = values;
-		expect(() => insertedRow(shots, { ...withoutCreated, id: 9 })).toThrow(/createdAt has a database default/);
+		expect(() => insertedRow(shots, { ...withoutCreated, aboveRating: false, id: 9 })).toThrow(/createdAt has a database default/);
 	});
 });

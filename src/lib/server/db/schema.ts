@@ -127,6 +127,8 @@ export const testPlans = mysqlTable(
 		impactToleranceM: double().notNull(),
 		targetDistanceM: double().notNull(),
 		shotsRequired: int().notNull(),
+		/** The firing line is told to stop after this many out-of-tolerance shots in a row. */
+		stopAfterOutOfTolerance: int().notNull().default(3),
 		notes: text(),
 		ownerId: int().references(() => users.id),
 		deletedAt: optionalTime(),
@@ -226,6 +228,15 @@ export const shots = mysqlTable(
 		pressurePa: double(),
 		enteredBy: int().references(() => users.id),
 		importId: int().references(() => imports.id),
+		/**
+		 * Fired above the rig's rated working pressure, and confirmed so by the officer (a safety
+		 * event: audited and mailed to the leads). Unconfirmed, such a fill pressure is refused as a typo.
+		 */
+		aboveRating: boolean().notNull().default(false),
+		/** Voided at the firing line (e.g. a bad chronograph reading): kept with its reason, out of the statistics. */
+		voidedAt: optionalTime(),
+		voidReason: varchar({ length: 500 }),
+		voidedBy: int().references(() => users.id),
 		deletedAt: optionalTime(),
 		createdAt: created(),
 		updatedAt: updated()

@@ -352,7 +352,7 @@ export async function fitCalibration(tx: Executor, input: FitCalibrationInput): 
 	const excluded = new Set(input.exclusions.map((e) => e.shotId));
 
 	// CalibrationShot inputs, with each shot's own conditions when it has them.
-	const left = { excluded: 0, deleted: 0, withoutMeasurement: 0, missesImpactDropped: 0 };
+	const left = { excluded: 0, deleted: 0, voided: 0, withoutMeasurement: 0, missesImpactDropped: 0 };
 	const conditions = new ConditionsCache();
 	const fitShots: CalibrationShot[] = [];
 	const rigInput = launcherRig(rig);
@@ -360,6 +360,11 @@ export async function fitCalibration(tx: Executor, input: FitCalibrationInput): 
 	for (const shot of shotRows) {
 		if (shot.deletedAt) {
 			left.deleted++;
+			continue;
+		}
+		// Voided at the firing line (void and re-shoot): kept in the record, out of every fit.
+		if (shot.voidedAt) {
+			left.voided++;
 			continue;
 		}
 		if (excluded.has(shot.id)) {

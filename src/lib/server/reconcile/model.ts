@@ -107,7 +107,7 @@ export interface CalibrationSummary {
 	fillPressureRangePa: { min: number; max: number };
 	nUsed: { shots: number; observations: number } & Record<ObservationKind, number>;
 	/** Shots of the chosen sessions left out, and why (counts). */
-	left: { excluded: number; deleted: number; withoutMeasurement: number; missesImpactDropped: number };
+	left: { excluded: number; deleted: number; voided?: number; withoutMeasurement: number; missesImpactDropped: number };
 	rmsByKind: PerKind;
 	noiseFloorByKind: PerKind;
 	crossValidation: {

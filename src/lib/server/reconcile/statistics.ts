@@ -266,7 +266,7 @@ async function shotsWithPredictions(tx: Executor, sessionIds: number[]): Promise
 		.select({ shot: SHOT_COLUMNS, prediction: PREDICTION_COLUMNS })
 		.from(shots)
 		.leftJoin(shotPredictions, eq(shotPredictions.shotId, shots.id))
-		.where(and(inArray(shots.sessionId, sessionIds), isNull(shots.deletedAt)))
+		.where(and(inArray(shots.sessionId, sessionIds), isNull(shots.deletedAt), isNull(shots.voidedAt)))
 		.orderBy(asc(shots.sessionId), asc(shots.sequence));
 	for (const row of rows)
 		bySession.get(row.shot.sessionId)!.push({ shot: row.shot, prediction: row.prediction?.shotId == null ? null : row.prediction });
