@@ -330,6 +330,17 @@ function flightPart(
  * needs. Null when the model cannot produce them (the projectile stays in the barrel, η leaves
  * (0, 1], or a flight does not reach its plane): the fit treats that as an infeasible trial.
  */
+function muzzleOnly(model: LauncherModel, setup: ShotSetup, p: CalibrationParameters, fill: number): number | null {
+	const r = calibratedMuzzleSpeed(model, p, setup, fill);
+	return r.ok ? r.speedMps : null;
+}
+
+/** From the session's shared curve when it has one (valve flow, large sessions), else the ODE. */
+function curveOrOde(model: LauncherModel, curves: MuzzleCurves, setup: ShotSetup, p: CalibrationParameters, fill: number): number | null {
+	const v = curves.speed(setup, p, fill);
+	return v === undefined ? muzzleOnly(model, setup, p, fill) : v;
+}
+
 export function modelShot(
 	model: LauncherModel,
 	shot: PreparedShot,
@@ -338,22 +349,14 @@ export function modelShot(
 	curves?: MuzzleCurves
 ): ShotModel | null {
 	try {
-		const direct = (q: CalibrationParameters, fill: number) => {
-			const r = calibratedMuzzleSpeed(model, q, shot.setup, fill);
-			return r.ok ? r.speedMps : null;
-		};
-		const speedOf = curves ? (q: CalibrationParameters, fill: number) => {
-			const v = curves.speed(shot.setup, q, fill);
-			return v === undefined ? direct(q, fill) : v;
-		} : direct;
 		let v0: number;
 		let muzzle: ReturnType<typeof muzzleWithDerivatives> = null;
 		if (withDerivatives) {
-			muzzle = muzzleWithDerivatives(model, p, shot.setup, curves ? speedOf : undefined);
+			muzzle = muzzleWithDerivatives(model, p, shot.setup, curves ? (q, fill) => curveOrOde(model, curves, shot.setup, q, fill) : undefined);
 			if (!muzzle) return null;
 			v0 = muzzle.speedMps;
 		} else {
-			const v = speedOf(p, shot.setup.fillGaugePa);
+			const v = curves ? curveOrOde(model, curves, shot.setup, p, shot.setup.fillGaugePa) : muzzleOnly(model, shot.setup, p, shot.setup.fillGaugePa);
 			if (v === null) return null;
 			v0 = v;
 		}

@@ -14,7 +14,7 @@
 // with μ from Sutherland's law (../drag.ts; reference sheet §4).
 
 import { requireNonNegative, requirePositive } from '../errors';
-import { flyToPlane, type FlightResult } from '../flight/driver';
+import { flyToPlane, type FlightInput, type FlightResult } from '../flight/driver';
 import { muzzleSpeed, type GasInertia } from '../internal';
 import { sutherlandViscosity } from '../drag';
 import { valveFlowMuzzleSpeed } from './valve-flow';
@@ -371,7 +371,7 @@ export function flyUnder(
 	distanceM: number
 ): FlightResult {
 	const s = setup.session;
-	return flyToPlane({
+	const input: FlightInput = {
 		speedMps,
 		elevationDeg,
 		azimuthDeg: s.azimuthDeg,
@@ -382,11 +382,10 @@ export function flyUnder(
 		dragCoefficient,
 		airDensityKgM3: s.airDensityKgM3,
 		wind: s.wind,
-		gravityMps2: s.gravityMps2,
-		...(law === 'sphere'
-			? { dragLaw: { kind: 'sphere' as const, dynamicViscosityPaS: sutherlandViscosity(temperatureKOf(s)) } }
-			: {})
-	});
+		gravityMps2: s.gravityMps2
+	};
+	if (law === 'sphere') input.dragLaw = { kind: 'sphere', dynamicViscosityPaS: sutherlandViscosity(temperatureKOf(s)) };
+	return flyToPlane(input);
 }
 
 // ---------------------------------------------------------------------------------------------
