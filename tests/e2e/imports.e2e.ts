@@ -8,14 +8,14 @@ import { signIn } from './support';
 
 /** Shots from the model for H1 with an ice ball (fill gauge Pa, muzzle m/s, impact x and y m). */
 const SHOTS: [number, number, number, number][] = [
-	[149823, 72.402, 0.002, 0.0033],
-	[200298, 97.448, -0.0045, -0.0016],
-	[250052, 117.343, 0.0146, 0.0002],
-	[150452, 72.256, 0.0129, -0.0061],
-	[199716, 97.121, 0.0031, 0.0057],
-	[249561, 117.69, -0.0067, 0.0012],
-	[150124, 72.61, 0.0008, -0.0029],
-	[200510, 97.3, -0.0012, 0.0044]
+	[149823, 20.681, 0.002, 0.0033],
+	[200298, 29.812, -0.0045, -0.0016],
+	[250052, 38.655, 0.0146, 0.0002],
+	[150452, 20.694, 0.0129, -0.0061],
+	[199716, 29.803, 0.0031, 0.0057],
+	[249561, 38.47, -0.0067, 0.0012],
+	[150124, 20.61, 0.0008, -0.0029],
+	[200510, 29.95, -0.0012, 0.0044]
 ];
 const BAD_ROW = 4;
 
@@ -94,7 +94,7 @@ test('an analyst uploads a file, fixes the mapping, sees the preview errors, imp
 	await expect(errors.getByRole('row').nth(1)).toHaveText(/^\s*4\s*Pressure \(bar\)\s*abc\s*Not a number: “abc”\.\s*$/);
 	const preview = page.getByTestId('import-preview');
 	await expect(preview.getByRole('row')).toHaveCount(8);
-	await expect(preview.getByRole('row').nth(1)).toContainText('72.40 m/s');
+	await expect(preview.getByRole('row').nth(1)).toContainText('20.68 m/s');
 	await expect(preview.getByRole('row').nth(1)).toContainText('1.498 bar');
 
 	await page.getByLabel('Import the valid rows; keep the rejected ones with their reasons in the import record').check();
@@ -109,7 +109,7 @@ test('an analyst uploads a file, fixes the mapping, sees the preview errors, imp
 	await expect(shots.getByRole('row')).toHaveCount(8);
 	const first = shots.getByRole('row').nth(1).getByRole('cell');
 	await expect(first.nth(0)).toHaveText('1');
-	await expect(first.nth(3)).toHaveText('72.40 m/s');
+	await expect(first.nth(3)).toHaveText('20.68 m/s');
 	// Predicted and residual muzzle speed: numbers with their unit, not the "—" of a missing prediction.
 	await expect(first.nth(4)).toHaveText(/^\d+\.\d{2} m\/s$/);
 	await expect(first.nth(5)).toHaveText(/^[+-]?\d+\.\d{2} m\/s$/);

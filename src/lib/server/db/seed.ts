@@ -87,7 +87,7 @@ const RIGS: RigSpec[] = [
 		valveType: 'Quick-exhaust piston valve',
 		nominalEfficiency: 0.6,
 		notes: 'Second chronograph gate fitted 0.5 m in front of the specimen frame.',
-		truth: { valveAreaM2: 1.2e-4, openingTimeS: 0.02, frictionN: 4, valveAreaWearPerWeek: -0.0025, elevationBiasDeg: -0.1, elevationSdDeg: 0.04, speedSdRel: 0.007, impactSdM: 0.005 }
+		truth: { valveAreaM2: 1.2e-4, openingTimeS: 0.02, frictionN: 4, valveAreaWearPerWeek: -0.0035, elevationBiasDeg: -0.1, elevationSdDeg: 0.04, speedSdRel: 0.007, impactSdM: 0.005 }
 	},
 	{
 		name: 'P3 · 60 mm product-impact cannon',
