@@ -173,7 +173,8 @@ const ELEVATION_STEP_DEG = 1e-4;
  */
 const FIT_FTOL = 1e-8;
 const FIT_XTOL = 1e-7;
-const ORDER: ParameterName[] = [
+/** Every fittable parameter, in report order. */
+export const PARAMETER_ORDER: readonly ParameterName[] = [
 	'efficiency',
 	'pressureSlope',
 	'energyOffset',
@@ -667,7 +668,7 @@ function startShots(prepared: PreparedShot[]): StartShot[] {
 
 /** The parameters a model fits under the options, in report order. */
 export function fittedNames(model: LauncherModel, options: FitLauncherOptions, hasFlightData: boolean): ParameterName[] {
-	return ORDER.filter((name) => {
+	return PARAMETER_ORDER.filter((name) => {
 		if (name === 'dragCoefficient') return options.dragCoefficient ?? hasFlightData;
 		if (name === 'elevationBias') return options.elevationBias === true;
 		if (!FAMILY_PARAMETERS[model.family].includes(name)) return false;

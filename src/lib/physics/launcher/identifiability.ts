@@ -8,8 +8,7 @@
 // 2 m from the muzzle).
 
 import type { LeastSquaresResult } from '../fit/least-squares';
-import { muzzleSpeed } from '../internal';
-import { PARAMETER_LABELS, dragLabel, type LauncherModel, type ParameterName } from './model';
+import { PARAMETER_LABELS, dragLabel, idealGasWork, type LauncherModel, type ParameterName } from './model';
 import type { PreparedShot } from './fit';
 
 export interface ParameterReport {
@@ -45,17 +44,7 @@ function mean(xs: number[]): number {
 /** Spans that scale with the launcher: the mean gas work (E), the bore area (C·A_v), the mean driving force (F). */
 function launcherSpans(shots: PreparedShot[]): Partial<Record<ParameterName, number>> {
 	const work = shots.map((s) => {
-		const r = muzzleSpeed({
-			fillGaugePa: s.setup.fillGaugePa,
-			ambientPa: s.setup.session.ambientPa,
-			reservoirM3: s.setup.rig.reservoirM3,
-			deadM3: s.setup.rig.deadM3,
-			boreDiameterM: s.setup.rig.boreDiameterM,
-			travelM: s.setup.rig.travelM,
-			massKg: s.setup.projectile.massKg,
-			efficiency: 1,
-			polytropicIndex: s.setup.rig.polytropicIndex
-		});
+		const r = idealGasWork(s.setup);
 		return r.ok ? r.gasWorkJ : 0;
 	});
 	const rig = shots[0]?.setup.rig;

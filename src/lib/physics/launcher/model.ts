@@ -242,6 +242,11 @@ function valveFlowInput(setup: ShotSetup, fillGaugePa: number, p: CalibrationPar
 	};
 }
 
+/** The gas-work energy balance with all of the gas work (η = 1, E = 0): W_gas, W_atm, m_eff. */
+export function idealGasWork(setup: ShotSetup) {
+	return muzzleSpeed(gasWorkInput(setup, setup.fillGaugePa, 1, 0));
+}
+
 /**
  * Muzzle speed of a setup at a fill pressure under a model and parameters; a typed failure when
  * the projectile stays in the barrel or the efficiency leaves (0, 1]. Invalid input throws

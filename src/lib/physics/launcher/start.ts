@@ -13,11 +13,11 @@
 // Shots the start cannot use (no muzzle speed, or the model cannot make them leave the barrel
 // at the start) are listed by index with the reason, never a reason to refuse the fit.
 
-import { muzzleSpeed } from '../internal';
 import { leastSquares } from '../fit/least-squares';
 import { reynoldsNumber, sphereDragCoefficient, sutherlandViscosity } from '../drag';
 import {
 	calibratedMuzzleSpeed,
+	idealGasWork,
 	temperatureKOf,
 	type CalibrationParameters,
 	type DragLaw,
@@ -59,18 +59,7 @@ export function gasWorkStart(
 	const skipped: StartNote[] = [];
 	for (const s of shots) {
 		if (s.muzzleSpeedMps === undefined) continue;
-		const r = muzzleSpeed({
-			fillGaugePa: s.setup.fillGaugePa,
-			ambientPa: s.setup.session.ambientPa,
-			reservoirM3: s.setup.rig.reservoirM3,
-			deadM3: s.setup.rig.deadM3,
-			boreDiameterM: s.setup.rig.boreDiameterM,
-			travelM: s.setup.rig.travelM,
-			massKg: s.setup.projectile.massKg,
-			efficiency: 1,
-			polytropicIndex: s.setup.rig.polytropicIndex,
-			gasInertia: s.setup.rig.gasInertia
-		});
+		const r = idealGasWork(s.setup);
 		if (!r.ok) {
 			skipped.push({ index: s.index, reason: 'even all of the gas work would not move the projectile out of the barrel' });
 			continue;

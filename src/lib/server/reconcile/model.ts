@@ -10,6 +10,7 @@ import { and, eq, inArray } from 'drizzle-orm';
 import { airDensity } from '$lib/physics/air';
 import {
 	DEFAULT_MODEL,
+	PARAMETER_ORDER,
 	neutralParameters,
 	type CandidateOutcome,
 	type LauncherCalibration,
@@ -42,16 +43,7 @@ export type CalibrationRow = typeof calibrations.$inferSelect;
 
 export type StoredParameterKey = Exclude<keyof CalibrationParameters, 'pRefPa' | 'model' | 'lossN'>;
 
-export const PARAMETER_NAMES: readonly ParameterName[] = [
-	'efficiency',
-	'pressureSlope',
-	'energyOffset',
-	'valveArea',
-	'openingTime',
-	'friction',
-	'dragCoefficient',
-	'elevationBias'
-];
+export const PARAMETER_NAMES: readonly ParameterName[] = PARAMETER_ORDER;
 
 /** Fit name → key in calibrations.parameters / standardErrors / fitted. */
 export const STORED_KEY: Record<ParameterName, StoredParameterKey> = {
