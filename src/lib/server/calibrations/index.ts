@@ -542,6 +542,12 @@ export async function calibrationDetail(rigId: number, projectileId: number, cal
 				);
 
 	const sessionTitles = new Map(residuals.sessions.map((s) => [s.id, s.title]));
+	// Shots the fit's start set aside, named as the range knows them: session and shot number.
+	const unusedIds = (summary.unused ?? []).map((u) => u.shotId);
+	const unusedRefs = unusedIds.length
+		? await tx.select({ id: shots.id, sessionId: shots.sessionId, sequence: shots.sequence }).from(shots).where(inArray(shots.id, unusedIds))
+		: [];
+	const unusedRef = new Map(unusedRefs.map((r) => [r.id, r]));
 	return {
 		rig: { id: rig.id, name: rig.name, ratedPressurePa: rig.ratedPressurePa, nominalEfficiency: rig.nominalEfficiency },
 		projectile: { id: projectile.id, name: projectile.name, nominalDragCoefficient: projectile.nominalDragCoefficient },
@@ -572,7 +578,10 @@ export async function calibrationDetail(rigId: number, projectileId: number, cal
 			model: row.parameters.model ?? { family: 'gas-work' as const, drag: 'constant' as const },
 			comparison: summary.comparison ?? null,
 			failure: summary.failure ?? null,
-			unused: summary.unused ?? []
+			unused: (summary.unused ?? []).map((u) => {
+				const ref = unusedRef.get(u.shotId);
+				return { ...u, sessionTitle: ref ? (sessionTitles.get(ref.sessionId) ?? `Session ${ref.sessionId}`) : null, sequence: ref?.sequence ?? null };
+			})
 		},
 		parameters,
 		correlation: {
