@@ -339,7 +339,10 @@ export function leastSquares(problem: LeastSquaresProblem): LeastSquaresResult {
 				prered = (before - after) / (fnorm * fnorm);
 				dirder = cross / (fnorm * fnorm);
 			}
-			const ratio = prered !== 0 ? actred / prered : 0;
+			// A step the model predicts will not reduce the sum (possible for a step clamped onto a
+			// bound) or a trial where the residuals are not finite (an infeasible point) is never
+			// accepted: with prered < 0 the plain ratio would flip the sign of actred = −1.
+			const ratio = prered > 0 && Number.isFinite(fnorm1) ? actred / prered : 0;
 			if (ratio <= 0.25) {
 				let temp = actred >= 0 ? 0.5 : (0.5 * dirder) / (dirder + 0.5 * actred);
 				if (0.1 * fnorm1 >= fnorm || temp < 0.1 || !Number.isFinite(temp)) temp = 0.1;

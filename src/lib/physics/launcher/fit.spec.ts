@@ -385,3 +385,31 @@ describe('predictShot', () => {
 		}
 	});
 });
+
+describe('fitLauncher: a family far from the data stays on feasible ground', () => {
+	// A throttled rig (a small valve: speeds far below the ideal gas work, like the demo's H1),
+	// simulated with the valve-flow family, fitted with gas work η0 + η1 + E: the best fit pushes
+	// η0 onto its lower bound. The solver must never accept a step, clamped onto that bound, at
+	// which a shot cannot be predicted (there the residuals are not finite) — it once did, and the
+	// fit then stopped on a Jacobian it could not compute.
+	it('converges, and every shot is predictable at the solution', () => {
+		const session = { sessionId: 'sweep', targetDistanceM: 5, elevationDeg: 2.5, launchHeightM: 1.2, aimHeightM: 1.2, airDensityKgM3: 1.26, ambientPa: 101900, temperatureC: 6, wind: { xMps: 0, zMps: 0 } };
+		const shots = simulateCampaign({
+			truth: { ...TRUTH, valveAreaM2: 3e-5, openingTimeS: 0.02, frictionN: 1.5, dragCoefficient: 0.45, elevationBiasDeg: 0 },
+			model: { family: 'valve-flow', drag: 'constant' },
+			rig: { reservoirM3: 2e-3, deadM3: 0.05e-3, boreDiameterM: 0.0254, travelM: 1.2 },
+			projectile: { massKg: 7.53e-3, diameterM: 0.025 },
+			sessions: [session],
+			fillPressuresPa: [1e5, 1.2e5, 1.4e5, 1.6e5, 1.8e5, 2e5, 2.2e5, 2.4e5],
+			shotsPerSession: 40,
+			noise: { speedMps: 0.1, pressurePa: 800, impactM: 0.005 },
+			measure: { muzzleSpeed: true, downrangeDistanceM: 4.5, impactHeight: true },
+			seed: 11
+		});
+		const fit = fitLauncher(shots, { speedMps: 0.1, pressurePa: 1000, impactM: 0.01 }, { pressureSlope: true, energyOffset: true, elevationBias: true, crossValidation: false });
+		expect(fit.converged, fit.message).toBe(true);
+		expect(fit.failure).toBeNull();
+		expect(fit.nUsed.shots).toBe(shots.length);
+		for (const s of shots) expect(predictShot(fit.calibration, s).ok).toBe(true);
+	});
+});

@@ -768,7 +768,7 @@ export function fitLauncher(shots: CalibrationShot[], sds: MeasurementSds, optio
 		OBSERVATION_KINDS.map((kind) => [kind, used.reduce((n, s) => n + s.observations.filter((o) => o.kind === kind).length, 0)])
 	) as Record<ObservationKind, number>;
 
-	const reports = parameterReports(model, names, ls, used);
+	const reports = parameterReports(model, names, ls, used, core.failure !== null || !ls.converged);
 	const identifiable = reports.map((r) => r.identifiable);
 	const covariance = ls.covariance.map((row, a) => row.map((c, b) => (identifiable[a] && identifiable[b] ? c : a === b ? Infinity : NaN)));
 	const correlation = ls.correlation.map((row, a) => row.map((c, b) => (identifiable[a] && identifiable[b] ? c : NaN)));

@@ -60,7 +60,9 @@ export function parameterReports(
 	model: LauncherModel,
 	names: ParameterName[],
 	ls: LeastSquaresResult,
-	shots: PreparedShot[]
+	shots: PreparedShot[],
+	/** The fit stopped early: its Jacobian says nothing about identifiability, so no rank is quoted. */
+	stopped = false
 ): ParameterReport[] {
 	const hasFlightData = shots.some((s) => s.observations.some((o) => o.kind !== 'muzzleSpeed'));
 	const hasImpacts = shots.some((s) => s.observations.some((o) => o.kind === 'impactHeight'));
@@ -81,6 +83,7 @@ export function parameterReports(
 			reason = `${label} cannot be determined: no measured muzzle speeds`;
 		else if ((name === 'pressureSlope' || name === 'energyOffset' || name === 'openingTime' || name === 'friction') && distinctPressures < 2)
 			reason = `${label} cannot be told apart from the other terms: all shots were filled to the same pressure`;
+		else if (stopped) reason = `${label} is not determined: the fit stopped before it settled (see its cause above)`;
 		else if (!ls.identifiable[j])
 			reason = `${label} cannot be determined: the data do not separate it from the other parameters (rank ${ls.rank} of ${names.length})`;
 		else if (!(halfWidth <= UNDETERMINED_SPAN_FRACTION * span))

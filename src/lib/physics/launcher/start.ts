@@ -86,6 +86,10 @@ export function gasWorkStart(
 	const pressureSlope = terms.pressureSlope ? fit.params[j++] : 0;
 	const energyOffsetJ = terms.energyOffset ? fit.params[j++] : 0;
 	const usable = Number.isFinite(efficiency) && efficiency > 0 && scale > 0;
+	// No usable η0 with every term (a throttled rig whose speeds lie far below the ideal gas work
+	// can pull η0 below zero): the same without the slope, then without the energy term.
+	if (!usable && terms.pressureSlope) return { ...gasWorkStart(shots, pRefPa, { ...terms, pressureSlope: false }), skipped };
+	if (!usable && terms.energyOffset) return { ...gasWorkStart(shots, pRefPa, { pressureSlope: false, energyOffset: false }), skipped };
 	return {
 		efficiency: usable
 			? Math.min(EFFICIENCY_START_RANGE.max, Math.max(EFFICIENCY_START_RANGE.min, efficiency))
