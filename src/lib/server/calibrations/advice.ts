@@ -78,7 +78,9 @@ export const CV_POOR_RATIO = 3;
 export type Verdict = { level: 'good' | 'watch' | 'poor' | 'none'; text: string; worstRatio: number | null };
 
 /** Whether the calibration predicts shots it has not seen, in plain words. */
-export function crossValidationVerdict(summary: Pick<CalibrationSummary, 'crossValidation' | 'noiseFloorByKind' | 'covarianceParameters'>): Verdict {
+export function crossValidationVerdict(
+	summary: Pick<CalibrationSummary, 'crossValidation' | 'noiseFloorByKind' | 'covarianceParameters' | 'model' | 'comparison'>
+): Verdict {
 	const cv = summary.crossValidation;
 	if (!cv) return { level: 'none', text: 'Not cross-validated: it needs at least two sessions, or enough shots for held-out folds.', worstRatio: null };
 	const ratios = RESIDUAL_KINDS.flatMap((kind) => {
@@ -96,10 +98,15 @@ export function crossValidationVerdict(summary: Pick<CalibrationSummary, 'crossV
 	const how = cv.method === 'leave-one-session-out' ? 'each session predicted from the others' : `${cv.folds}-fold`;
 	if (worst <= CV_GOOD_RATIO)
 		return { level: 'good', text: `Predicts unseen shots about as well as the instruments allow (${how}; held-out error at most ${worst.toFixed(1)} × the noise floor).`, worstRatio: worst };
-	const slope = summary.covarianceParameters.includes('eta1');
-	const suggestion = slope
-		? 'Calibrate over a narrower pressure range, or look for a change of the rig between sessions (seal wear, a leak).'
-		: 'Fit the pressure slope η1, calibrate over a narrower pressure range, or look for a change of the rig between sessions (seal wear, a leak).';
+	// The richer model to try depends on what was fitted: the valve-flow family and the pressure
+	// slope are the two ways the speed–pressure curve can bend more than the plain gas-work one.
+	const richer =
+		summary.model?.family === 'valve-flow' || summary.covarianceParameters.includes('eta1')
+			? ''
+			: summary.comparison
+				? 'Compare it with the valve-flow model in the table above, '
+				: 'Try the automatic model choice (it compares the valve-flow model and the pressure slope η1), ';
+	const suggestion = `${richer}${richer ? 'calibrate' : 'Calibrate'} over a narrower pressure range, or look for a change of the rig between sessions (seal wear, a leak).`;
 	if (worst <= CV_POOR_RATIO)
 		return { level: 'watch', text: `Held-out error is ${worst.toFixed(1)} × the noise floor (${how}): usable, but the model misses some of what changes between shots. ${suggestion}`, worstRatio: worst };
 	return {
