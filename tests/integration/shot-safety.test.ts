@@ -159,4 +159,13 @@ describe('void and corrections at the firing line', () => {
 		await expect(shotsModule.setVoided(mine.id, null, officer)).rejects.toMatchObject({ status: 403 });
 		await expect(shotsModule.update(mine.id, { muzzleSpeedMps: 97 }, officer)).rejects.toMatchObject({ status: 403 });
 	});
+
+	it('the log page acts only on its own session’s shots: another session’s shot id is 404', async () => {
+		const a = await newSession();
+		const b = await newSession();
+		const { shot: inA } = await shotsModule.create(a, shot(), officer);
+		await expect(shotsModule.assertInSession(inA.id, a)).resolves.toBeUndefined();
+		await expect(shotsModule.assertInSession(inA.id, b)).rejects.toMatchObject({ status: 404, field: 'shotId' });
+		await expect(shotsModule.assertInSession(999_999_999, a)).rejects.toMatchObject({ status: 404 });
+	});
 });

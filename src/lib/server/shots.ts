@@ -344,6 +344,13 @@ export async function get(shotId: number) {
 	return row ?? null;
 }
 
+/** Refuse a shot id that is not a live shot of this session (a page acts on its own session's shots). */
+export async function assertInSession(shotId: number, sessionId: number) {
+	const shot = await get(shotId);
+	if (!shot || shot.deletedAt || shot.sessionId !== sessionId)
+		throw new SessionRuleError('shotId', `No shot with id ${shotId} in this session.`, 404);
+}
+
 /**
  * Who may change a shot: an analyst or above any shot (a closed session only a lead); a range
  * officer only the shots they logged, and only while the session is open.

@@ -53,11 +53,12 @@ export const actions: Actions = {
 	/** An officer corrects one of their own shots while the session is open (analysts any); audited. */
 	correctShot: async (event) => {
 		const user = await requireRole(event, 'range_officer');
-		idParam(event.params.id, 'range session');
+		const sessionId = idParam(event.params.id, 'range session');
 		const parsed = correction.safeParse(formValues(await event.request.formData()));
 		if (!parsed.success) return fail(400, { message: issuesOf(parsed.error).map((i) => i.message).join(' '), field: issuesOf(parsed.error)[0]?.path });
 		const { shotId, ...patch } = parsed.data;
 		try {
+			await shots.assertInSession(shotId, sessionId);
 			const after = await shots.update(shotId, patch, user);
 			return { corrected: after.sequence };
 		} catch (err) {
@@ -67,13 +68,14 @@ export const actions: Actions = {
 	/** Void and re-shoot: the shot stays, with its reason, out of the statistics; audited. */
 	voidShot: async (event) => {
 		const user = await requireRole(event, 'range_officer');
-		idParam(event.params.id, 'range session');
+		const sessionId = idParam(event.params.id, 'range session');
 		const data = await event.request.formData();
 		const shotId = Number(data.get('shotId'));
 		const parsed = shotVoid.safeParse({ reason: data.get('reason') ?? '' });
 		if (!Number.isInteger(shotId) || shotId < 1) return fail(400, { message: 'Choose a shot to void.', field: 'shotId' });
 		if (!parsed.success) return fail(400, { message: issuesOf(parsed.error)[0].message, field: 'reason' });
 		try {
+			await shots.assertInSession(shotId, sessionId);
 			const after = await shots.setVoided(shotId, parsed.data.reason, user);
 			return { voided: after.sequence };
 		} catch (err) {
