@@ -2,11 +2,12 @@
 // to leave out and why. Shared by the page's form (superforms, browser) and the fitCalibration
 // action (server). The efficiency η0 is always fitted, so it is not a choice here.
 import { z } from 'zod';
+import { DRAG_LAWS, LAUNCHER_FAMILIES } from '$lib/physics/launcher/families';
 
 export const OPTIONAL_PARAMETERS = ['pressureSlope', 'energyOffset', 'dragCoefficient', 'elevationBias'] as const;
 /** 'auto': every candidate model, compared by held-out error (physics.md §5); or one family. */
-export const MODEL_CHOICES = ['auto', 'gas-work', 'valve-flow'] as const;
-export const DRAG_LAWS = ['constant', 'sphere'] as const;
+export const MODEL_CHOICES = ['auto', ...LAUNCHER_FAMILIES] as const;
+export { DRAG_LAWS };
 export type OptionalParameter = (typeof OPTIONAL_PARAMETERS)[number];
 
 /** calibration_exclusions.reason is VARCHAR(500). */

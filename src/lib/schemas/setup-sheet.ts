@@ -3,6 +3,7 @@
 // session (schemas/range.ts), so a sheet accepts exactly what a session would. The fill pressure
 // and elevation are not inputs: the sheet solves for them.
 import { z } from 'zod';
+import { DRAG_LAWS, LAUNCHER_FAMILIES } from '$lib/physics/launcher/families';
 import { rangeSessionInput } from './range';
 
 const session = rangeSessionInput.shape;
@@ -77,7 +78,7 @@ export const setupSheetOutput = z.object({
 		status: z.enum(['calibrated', 'uncalibrated']),
 		calibrationId: z.int().nullable(),
 		approvedAt: z.iso.datetime().nullable(),
-		model: z.object({ family: z.enum(['gas-work', 'valve-flow']), drag: z.enum(['constant', 'sphere']) }),
+		model: z.object({ family: z.enum(LAUNCHER_FAMILIES), drag: z.enum(DRAG_LAWS) }),
 		fitted: z.array(z.string()).meta({
 			description:
 				'Parameters the calibration fitted (eta0, eta1, energyOffsetJ, valveAreaM2, openingTimeS, frictionN, dragCoefficient, elevationBiasDeg).'

@@ -22,6 +22,7 @@ import { importRecordSchema, importRefusalSchema, importUploadSchema, IMPORT_UPL
 import { SESSION_SORTS } from './sessions';
 import { approvedCalibration, calibrationDetail, calibrationFitInput, calibrationList } from './calibrations/api';
 import { SPEED_BASES } from './db/schema';
+import { DRAG_LAWS, LAUNCHER_FAMILIES } from '$lib/physics/launcher/model';
 
 export const API_VERSION = '1.0.0';
 
@@ -146,8 +147,8 @@ const setupPrediction = z.object({
 		calibrationId: z.int().nullable(),
 		approvedAt: dateTime.nullable(),
 		model: z.object({
-			family: z.enum(['gas-work', 'valve-flow']),
-			drag: z.enum(['constant', 'sphere']).meta({ description: 'constant: dragCoefficient is C_D; sphere: it is a factor on the Morrison sphere correlation C_D(Re).' })
+			family: z.enum(LAUNCHER_FAMILIES),
+			drag: z.enum(DRAG_LAWS).meta({ description: 'constant: dragCoefficient is C_D; sphere: it is a factor on the Morrison sphere correlation C_D(Re).' })
 		}),
 		parameters: z.object({
 			efficiency: z.number().meta({ description: 'η0 (gas work), dimensionless.' }),

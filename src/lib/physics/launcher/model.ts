@@ -62,8 +62,8 @@ export interface RangeConditions {
 export const DEFAULT_AIR_TEMPERATURE_C = 15;
 const KELVIN = 273.15;
 
-export type LauncherFamily = 'gas-work' | 'valve-flow';
-export type DragLaw = 'constant' | 'sphere';
+export { DRAG_LAWS, LAUNCHER_FAMILIES, type DragLaw, type LauncherFamily } from './families';
+import type { DragLaw, LauncherFamily } from './families';
 
 /** Which model a calibration is: its family and its drag law. */
 export interface LauncherModel {

@@ -6,7 +6,7 @@
 import type { RequestEvent } from '@sveltejs/kit';
 import { and, asc, desc, eq, isNull, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
-import { DEFAULT_MODEL } from '$lib/physics/launcher';
+import { DEFAULT_MODEL, DRAG_LAWS, LAUNCHER_FAMILIES } from '$lib/physics/launcher';
 import { endpoint, fail, idParam, issuesOf, ok, requestJson, type ApiIssue } from '../api';
 import { db } from '../db';
 import { CALIBRATION_STATUSES, calibrations, projectiles, rangeSessions, rigs } from '../db/schema';
@@ -26,16 +26,14 @@ import { EXCLUSION_REASON_MAX_LENGTH } from '../reconcile/calibrate';
 // ---------------------------------------------------------------------------------------------
 // Schemas: the request body, and what comes back (the OpenAPI document is generated from these).
 
-export const CALIBRATION_FAMILIES = ['gas-work', 'valve-flow'] as const;
-export const CALIBRATION_DRAG_LAWS = ['constant', 'sphere'] as const;
 
 const id = z.int().positive();
 
 export const calibrationModelChoice = z
 	.object({
-		family: z.enum(CALIBRATION_FAMILIES, { error: 'Choose the model family: gas-work or valve-flow.' }),
+		family: z.enum(LAUNCHER_FAMILIES, { error: 'Choose the model family: gas-work or valve-flow.' }),
 		drag: z
-			.enum(CALIBRATION_DRAG_LAWS, { error: 'Choose the drag law: constant or sphere.' })
+			.enum(DRAG_LAWS, { error: 'Choose the drag law: constant or sphere.' })
 			.optional()
 			.meta({ description: 'constant: a constant C_D (default); sphere: a factor on the sphere correlation C_D(Re), spherical projectiles only.' }),
 		pressureSlope: z.boolean().optional().meta({ description: 'Gas work: fit the efficiency slope η1.' }),
@@ -88,8 +86,8 @@ const perKind = z.object({
 });
 const ratioPerKind = z.object({ muzzleSpeed: z.number().nullable(), downrangeSpeed: z.number().nullable(), impactHeight: z.number().nullable() });
 const modelSchema = z.object({
-	family: z.enum(CALIBRATION_FAMILIES),
-	drag: z.enum(CALIBRATION_DRAG_LAWS).meta({ description: 'constant: dragCoefficient is C_D; sphere: it is a factor on the sphere correlation C_D(Re).' })
+	family: z.enum(LAUNCHER_FAMILIES),
+	drag: z.enum(DRAG_LAWS).meta({ description: 'constant: dragCoefficient is C_D; sphere: it is a factor on the sphere correlation C_D(Re).' })
 });
 const STATUS = z.enum(CALIBRATION_STATUSES);
 

@@ -5,6 +5,8 @@
 import { and, asc, desc, eq, inArray } from 'drizzle-orm';
 import { PhysicsInputError } from '$lib/physics/errors';
 import {
+	DRAG_LAWS,
+	LAUNCHER_FAMILIES,
 	PARAMETER_FIELD,
 	compareModels,
 	fitLauncher,
@@ -176,13 +178,11 @@ function checkParameters(parameters: readonly ParameterName[]) {
 	});
 }
 
-const FAMILIES: readonly LauncherFamily[] = ['gas-work', 'valve-flow'];
-const DRAG_LAWS: readonly DragLaw[] = ['constant', 'sphere'];
 
 function checkModel(model: ModelChoice | undefined, sphere: boolean) {
 	if (model === undefined || model === 'auto') return;
-	if (!FAMILIES.includes(model.family))
-		throw new ReconcileError('model.family', `Choose the model family: ${FAMILIES.join(' or ')}.`);
+	if (!LAUNCHER_FAMILIES.includes(model.family))
+		throw new ReconcileError('model.family', `Choose the model family: ${LAUNCHER_FAMILIES.join(' or ')}.`);
 	if (model.drag !== undefined && !DRAG_LAWS.includes(model.drag))
 		throw new ReconcileError('model.drag', `Choose the drag law: ${DRAG_LAWS.join(' or ')}.`);
 	if (model.drag === 'sphere' && !sphere)
